@@ -45,4 +45,4 @@ def upper_bound_ohm(reading_ohm: float) -> float:
 
 def ceil_to_resolution(value_ohm: float) -> float:
     """Round ``value_ohm`` up to the next 0.01 Ω (a tiny float slack avoids 0.30000001 -> 0.31)."""
-    return math.ceil(round(value_ohm / RESOLUTION_OHM, 6)) * RESOLUTION_OHM
+    return round(math.ceil(round(value_ohm / RESOLUTION_OHM, 6)) * RESOLUTION_OHM, 2)
