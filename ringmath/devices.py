@@ -116,14 +116,11 @@ def device_limit(ocpd: Ocpd, path: str = "circuit.ocpd") -> DeviceLimit:
                              f"{', '.join(CURVE_MULTIPLE)} for a {standard} device")
         rating = _rating(ocpd.rating_a, BREAKER_RATINGS_A, path, standard)
         multiple = CURVE_MULTIPLE[curve]
-        tabulated = round(CMIN * U0_V / (multiple * rating), 2)
-        return DeviceLimit(
-            description=f"{rating} A type {curve} {BREAKER_STANDARDS[standard]} ({standard})",
-            standard=standard, curve=curve, rating_a=float(rating),
-            zs_tabulated_ohm=tabulated, zs_max_ohm=measured_limit_ohm(tabulated),
-            source=(f"BS 7671:2018 Table 41.3 basis: Zs = Cmin × U0 / Ia = 0.95 × 230 V / "
-                    f"({multiple} × {rating} A); {_MEASURED_NOTE}"),
-        )
+        return _overcurrent_limit(
+            f"{rating} A type {curve} {BREAKER_STANDARDS[standard]} ({standard})",
+            standard, curve, rating, round(CMIN * U0_V / (multiple * rating), 2),
+            f"BS 7671:2018 Table 41.3 basis: Zs = Cmin × U0 / Ia = 0.95 × 230 V / "
+            f"({multiple} × {rating} A)")
     if ocpd.curve not in (None, ""):
         raise ValueError(f"{path}.curve: a {standard} fuse has no tripping curve "
                          f"(got {ocpd.curve!r})")
@@ -133,13 +130,18 @@ def device_limit(ocpd: Ocpd, path: str = "circuit.ocpd") -> DeviceLimit:
 def _fuse_limit(standard: str, rating_a: float, path: str) -> DeviceLimit:
     table = FUSE_ZS_OHM[standard]
     rating = _rating(rating_a, tuple(table), path, standard)
-    tabulated = table[rating]
+    return _overcurrent_limit(
+        f"{rating} A {FUSE_NAMES[standard]} ({standard})", standard, None, rating, table[rating],
+        "BS 7671:2018 Table 41.2, 0.4 s (value from memory: check against the printed table)")
+
+
+def _overcurrent_limit(description: str, standard: str, curve: str | None, rating_a: int,
+                       tabulated_ohm: float, table_source: str) -> DeviceLimit:
+    """A DeviceLimit whose measured limit is 80 % of ``tabulated_ohm`` (ohms)."""
     return DeviceLimit(
-        description=f"{rating} A {FUSE_NAMES[standard]} ({standard})",
-        standard=standard, curve=None, rating_a=float(rating),
-        zs_tabulated_ohm=tabulated, zs_max_ohm=measured_limit_ohm(tabulated),
-        source=(f"BS 7671:2018 Table 41.2, 0.4 s (value from memory: check against the printed "
-                f"table); {_MEASURED_NOTE}"),
+        description=description, standard=standard, curve=curve, rating_a=float(rating_a),
+        zs_tabulated_ohm=tabulated_ohm, zs_max_ohm=measured_limit_ohm(tabulated_ohm),
+        source=f"{table_source}; {_MEASURED_NOTE}",
     )
 
 
