@@ -1,0 +1,95 @@
+"""Load a ``ringtest/1`` document (one circuit record or a job document) into the database.
+
+The document is checked by ringmath's parser first; then every row is written through
+fieldapp.changes, so an imported job has the same history as one typed in.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+
+from sqlalchemy import select
+
+from fieldapp import changes
+from fieldapp.extensions import db
+from fieldapp.models import Circuit, Job
+from ringmath import parse_document
+
+
+def _split_reference(reference: str) -> tuple[str, str]:
+    board, _, way = reference.rpartition("/")
+    return (board, way) if board else ("", reference)
+
+
+def circuit_fields(block: dict) -> dict:
+    """Circuit columns from a record's ``circuit`` block (already checked by the parser)."""
+    ocpd = block.get("ocpd") or {}
+    rcd = block.get("rcd") or {}
+    board, way = _split_reference(str(block.get("reference") or ""))
+    return {
+        "board": board, "way": way, "description": block.get("description") or "",
+        "ocpd_standard": ocpd.get("standard"), "ocpd_curve": ocpd.get("curve") or None,
+        "ocpd_rating_a": float(ocpd.get("rating_a")),
+        "rcd_rated_ma": float(rcd["rated_ma"]) if rcd.get("rated_ma") else None,
+        "rcd_type": rcd.get("type") or None,
+        "live_csa_mm2": float(block.get("live_csa_mm2", 2.5)),
+        "cpc_csa_mm2": float(block.get("cpc_csa_mm2", 1.5)),
+        "ze_ohm": None if block.get("ze_ohm") is None else float(block["ze_ohm"]),
+        "ze_source": block.get("ze_source") or "measured",
+        "earthing": block.get("earthing") or None,
+        "cable_length_m": block.get("cable_length_m"),
+    }
+
+
+def _outlet_fields(doc: dict) -> dict:
+    return {
+        "key": str(doc["id"]), "label": doc.get("label") or "",
+        "kind": doc.get("kind") or "twin_socket", "spur_from_key": doc.get("spur_from") or None,
+        "fuse_a": doc.get("fuse_a"), "spur_csa_mm2": doc.get("spur_csa_mm2"),
+        "spur_cpc_csa_mm2": doc.get("spur_cpc_csa_mm2"),
+    }
+
+
+def import_circuit(job: Job, record: dict, actor: changes.Actor, position: int) -> Circuit:
+    """One circuit record into ``job``; readings through set_reading (logged).
+
+    The safety checks are left unticked: an import confirms nothing about isolation on site.
+    """
+    fields = circuit_fields(record["circuit"])
+    fields.update({"job_id": job.id, "position": position, "current_step": "safety"})
+    circuit = changes.create(Circuit, fields, actor)
+    e2e = record.get("end_to_end") or {}
+    for name in ("r1", "rn", "r2"):
+        if e2e.get(name) is not None:
+            changes.set_reading(circuit, name, e2e[name], actor)
+    for doc in record.get("outlets") or []:
+        outlet = changes.add_outlet(circuit, _outlet_fields(doc), actor)
+        for name in ("ln", "le"):
+            if doc.get(name) is not None:
+                changes.set_reading(circuit, name, doc[name], actor, outlet=outlet)
+    return circuit
+
+
+def import_document(doc: dict, actor: changes.Actor, *, tester_id: int | None = None) -> Job:
+    """A new Job from a ``ringtest/1`` document. ValueError when it does not parse or the
+    job reference is already taken (the caller rolls the session back)."""
+    parse_document(doc)  # raises ValueError naming the field
+    records = doc["circuits"] if "circuits" in doc else [doc]
+    job_doc = doc.get("job") or records[0].get("job") or {}
+    reference = str(job_doc.get("reference") or "").strip()
+    if not reference:
+        raise ValueError("job.reference: is required")
+    if db.session.scalar(select(Job.id).where(Job.reference == reference)) is not None:
+        raise ValueError(f"job.reference: {reference!r} already exists")
+    date = job_doc.get("date")
+    job = changes.create(Job, {
+        "reference": reference, "site": str(job_doc.get("site") or ""),
+        "client": str(job_doc.get("client") or ""),
+        "date": dt.date.fromisoformat(date) if date else None,
+        "notes": str(job_doc.get("notes") or ""),
+        "created_by": actor.user_id, "tester_id": tester_id, "status": "in_progress",
+    }, actor)
+    for position, record in enumerate(records, start=1):
+        import_circuit(job, record, actor, position)
+    return job
+

@@ -1,0 +1,143 @@
+"""Database tables. No business logic here: write through fieldapp.changes, compute in ringmath.
+
+Readings (Circuit.r1/rn/r2, Outlet.ln/le) are stored as text exactly as the record format has
+them: a number string such as "0.52", "OL", or NULL for a reading not taken yet.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+
+from flask_login import UserMixin
+from sqlalchemy import ForeignKey, String, Text, UniqueConstraint
+from sqlalchemy.orm import Mapped, mapped_column, relationship
+
+from fieldapp.extensions import db
+
+ROLES = ("apprentice", "tester", "supervisor")
+JOB_STATUSES = ("in_progress", "submitted", "returned", "approved")
+#: The guided sequence of one circuit, in order.
+STEPS = ("safety", "e2e", "ln", "le", "results")
+ENTITIES = ("job", "circuit", "outlet")
+
+
+def utcnow() -> dt.datetime:
+    """Now in UTC without tzinfo (stored the same way on SQLite and PostgreSQL)."""
+    return dt.datetime.now(dt.UTC).replace(tzinfo=None)
+
+
+class User(UserMixin, db.Model):
+    __tablename__ = "user"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    username: Mapped[str] = mapped_column(String(64), unique=True)
+    name: Mapped[str] = mapped_column(String(120))
+    password_hash: Mapped[str] = mapped_column(String(256))
+    role: Mapped[str] = mapped_column(String(16))
+
+
+class Job(db.Model):
+    __tablename__ = "job"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    reference: Mapped[str] = mapped_column(String(40), unique=True)
+    site: Mapped[str] = mapped_column(String(200))
+    client: Mapped[str] = mapped_column(String(200), default="")
+    date: Mapped[dt.date | None]
+    notes: Mapped[str] = mapped_column(Text, default="")
+    created_by: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    tester_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    status: Mapped[str] = mapped_column(String(16), default="in_progress")
+    submitted_at: Mapped[dt.datetime | None]
+    reviewed_by_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    reviewed_at: Mapped[dt.datetime | None]
+    review_comment: Mapped[str | None] = mapped_column(Text)
+    approved_by_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    approved_at: Mapped[dt.datetime | None]
+    created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
+    updated_at: Mapped[dt.datetime] = mapped_column(default=utcnow, onupdate=utcnow)
+
+    creator: Mapped[User | None] = relationship(foreign_keys=[created_by])
+    tester: Mapped[User | None] = relationship(foreign_keys=[tester_id])
+    reviewed_by: Mapped[User | None] = relationship(foreign_keys=[reviewed_by_id])
+    approved_by: Mapped[User | None] = relationship(foreign_keys=[approved_by_id])
+    circuits: Mapped[list[Circuit]] = relationship(
+        back_populates="job", order_by="Circuit.position")
+
+
+class Circuit(db.Model):
+    __tablename__ = "circuit"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    job_id: Mapped[int] = mapped_column(ForeignKey("job.id"), index=True)
+    position: Mapped[int] = mapped_column(default=0)
+    board: Mapped[str] = mapped_column(String(40), default="DB1")
+    way: Mapped[str] = mapped_column(String(20), default="")
+    description: Mapped[str] = mapped_column(String(200), default="")
+    ocpd_standard: Mapped[str] = mapped_column(String(20), default="BS EN 60898")
+    ocpd_curve: Mapped[str | None] = mapped_column(String(1))
+    ocpd_rating_a: Mapped[float] = mapped_column(default=32.0)
+    rcd_rated_ma: Mapped[float | None]
+    rcd_type: Mapped[str | None] = mapped_column(String(8))
+    live_csa_mm2: Mapped[float] = mapped_column(default=2.5)
+    cpc_csa_mm2: Mapped[float] = mapped_column(default=1.5)
+    ze_ohm: Mapped[float | None]
+    ze_source: Mapped[str] = mapped_column(String(10), default="measured")
+    earthing: Mapped[str | None] = mapped_column(String(8))
+    cable_length_m: Mapped[float | None]
+    safety_isolated: Mapped[bool] = mapped_column(default=False)
+    safety_locked_off: Mapped[bool] = mapped_column(default=False)
+    safety_proved_dead: Mapped[bool] = mapped_column(default=False)
+    safety_confirmed_by_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    safety_confirmed_at: Mapped[dt.datetime | None]
+    r1: Mapped[str | None] = mapped_column(String(16))
+    rn: Mapped[str | None] = mapped_column(String(16))
+    r2: Mapped[str | None] = mapped_column(String(16))
+    current_step: Mapped[str] = mapped_column(String(10), default="safety")
+
+    job: Mapped[Job] = relationship(back_populates="circuits")
+    safety_confirmed_by: Mapped[User | None] = relationship()
+    outlets: Mapped[list[Outlet]] = relationship(
+        back_populates="circuit", order_by="Outlet.position")
+
+
+class Outlet(db.Model):
+    __tablename__ = "outlet"
+    __table_args__ = (UniqueConstraint("circuit_id", "key"),)
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    circuit_id: Mapped[int] = mapped_column(ForeignKey("circuit.id"), index=True)
+    position: Mapped[int] = mapped_column(default=0)
+    key: Mapped[str] = mapped_column(String(16))
+    label: Mapped[str] = mapped_column(String(120), default="")
+    kind: Mapped[str] = mapped_column(String(20), default="twin_socket")
+    spur_from_key: Mapped[str | None] = mapped_column(String(16))
+    fuse_a: Mapped[float | None]
+    spur_csa_mm2: Mapped[float | None]
+    spur_cpc_csa_mm2: Mapped[float | None]
+    ln: Mapped[str | None] = mapped_column(String(16))
+    le: Mapped[str | None] = mapped_column(String(16))
+    deleted_at: Mapped[dt.datetime | None]
+
+    circuit: Mapped[Circuit] = relationship(back_populates="outlets")
+
+
+class ChangeLog(db.Model):
+    """Append-only history of every write: who, from which device, old value -> new value."""
+
+    __tablename__ = "change_log"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    at: Mapped[dt.datetime] = mapped_column(default=utcnow)
+    user_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    device: Mapped[str] = mapped_column(String(200), default="")
+    entity: Mapped[str] = mapped_column(String(10))
+    entity_id: Mapped[int]
+    circuit_id: Mapped[int | None] = mapped_column(ForeignKey("circuit.id"), index=True)
+    field: Mapped[str] = mapped_column(String(40))
+    old_value: Mapped[str | None] = mapped_column(Text)
+    new_value: Mapped[str | None] = mapped_column(Text)
+    #: The idempotency key a client sent with the write; unique where present.
+    client_id: Mapped[str | None] = mapped_column(String(64), unique=True)
+
+    user: Mapped[User | None] = relationship()

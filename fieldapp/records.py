@@ -1,0 +1,89 @@
+"""The bridge to ringmath: a circuit's rows as a ``ringtest/1`` record, and its diagnosis."""
+
+from __future__ import annotations
+
+from fieldapp.changes import live_outlets
+from fieldapp.models import Circuit, Job
+from ringmath import FORMAT
+
+
+def reading_value(text: str | None):
+    """A stored reading ("0.52", "OL", None) in record form: float, "OL" or None."""
+    if text is None:
+        return None
+    if text == "OL":
+        return "OL"
+    return float(text)
+
+
+def circuit_reference(circuit: Circuit) -> str:
+    """Board and way as one reference, e.g. "DB1/3"."""
+    return "/".join(part for part in (circuit.board, circuit.way) if part)
+
+
+def job_block(job: Job) -> dict:
+    return {
+        "reference": job.reference,
+        "site": job.site,
+        "client": job.client,
+        "date": job.date.isoformat() if job.date else None,
+        "tester": job.tester.name if job.tester else "",
+        "notes": job.notes or "",
+    }
+
+
+def circuit_block(circuit: Circuit) -> dict:
+    rcd = None
+    if circuit.rcd_rated_ma:
+        rcd = {"rated_ma": circuit.rcd_rated_ma, "type": circuit.rcd_type or None}
+    return {
+        "reference": circuit_reference(circuit),
+        "description": circuit.description,
+        "ocpd": {"standard": circuit.ocpd_standard, "curve": circuit.ocpd_curve or None,
+                 "rating_a": circuit.ocpd_rating_a},
+        "rcd": rcd,
+        "live_csa_mm2": circuit.live_csa_mm2,
+        "cpc_csa_mm2": circuit.cpc_csa_mm2,
+        "ze_ohm": circuit.ze_ohm,
+        "ze_source": circuit.ze_source,
+        "earthing": circuit.earthing or None,
+        "cable_length_m": circuit.cable_length_m,
+    }
+
+
+def circuit_record(circuit: Circuit, *, with_job: bool = True) -> dict:
+    """The circuit as a plain ``ringtest/1`` record dict (deleted outlets left out)."""
+    record = {"format": FORMAT}
+    if with_job:
+        record["job"] = job_block(circuit.job)
+    record["circuit"] = circuit_block(circuit)
+    record["end_to_end"] = {f: reading_value(getattr(circuit, f)) for f in ("r1", "rn", "r2")}
+    record["outlets"] = [
+        {
+            "id": o.key, "label": o.label, "kind": o.kind, "spur_from": o.spur_from_key or None,
+            "fuse_a": o.fuse_a, "spur_csa_mm2": o.spur_csa_mm2,
+            "spur_cpc_csa_mm2": o.spur_cpc_csa_mm2,
+            "ln": reading_value(o.ln), "le": reading_value(o.le),
+        }
+        for o in live_outlets(circuit)
+    ]
+    return record
+
+
+def job_document(job: Job) -> dict:
+    """A whole job as one ``ringtest/1`` job document."""
+    return {"format": FORMAT, "job": job_block(job),
+            "circuits": [circuit_record(c, with_job=False) for c in job.circuits]}
+
+
+def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
+    """(diagnosis, None) from ringmath.diagnose, or (None, reason) when it cannot run."""
+    try:
+        from ringmath import diagnose  # noqa: PLC0415  (ringmath grows alongside the app)
+    except ImportError:
+        return None, "The diagnosis module is not installed yet."
+    try:
+        return diagnose(circuit_record(circuit)), None
+    except ValueError as error:
+        return None, f"The record cannot be diagnosed yet: {error}"
+
