@@ -1,0 +1,293 @@
+"""Fitting competing explanations of a ring's readings and ranking them.
+
+Each hypothesis is a resistor network (``ringmath.network``) with a few parameters; the outlet
+positions are unknown and integrated out (``ringmath.likelihood``). Parameters are found by a
+grid search refined around the best cells. Hypotheses are ranked by the Bayesian information
+criterion (Schwarz 1978): score = max log-likelihood - (k/2) ln(n) + ln(prior), with k the
+number of fitted parameters and n the number of readings; the confidences are the normalised
+exp(score) (an approximation of the posterior probabilities).
+
+Because the two ends of a ring are interchangeable in every step, a hypothesis and its mirror
+image (t -> 1 - t) explain the readings equally; fault positions are searched on one half.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ringmath.likelihood import (
+    Prepared,
+    e2e_consistency,
+    log_mean_exp,
+    marginal_loglik,
+    outlet_loglik,
+    reading_loglik,
+    t_grid,
+)
+from ringmath.network import CONDUCTOR_INDEX, Layout, step_resistance
+from ringmath.nodal import SHORT_OHM
+
+G_FINE = 64
+G_COARSE = 20
+#: Prior probabilities of each explanation (our working figures: most rings are sound).
+PRIORS = {
+    "healthy": 0.70,
+    "interconnection": 0.05,
+    "open_conductor": 0.03,
+    "high_resistance_joint": 0.03,
+    "wrong_cross_connection": 0.04,
+}
+#: Smallest series joint worth naming, ohms (smaller ones hide in cable tolerance).
+JOINT_MIN_OHM = 0.03
+_PLAIN = Layout(1, (False,))
+_SPLIT = Layout(2, (False, True))
+_BRIDGE = Layout(3, (False, False, False), extras=((1, 2),))
+
+
+@dataclass(frozen=True)
+class Fit:
+    """One fitted hypothesis.
+
+    loglik: maximised log-likelihood (positions integrated). k: fitted parameters.
+    theta: the parameters (positions as ring fractions, resistances in ohms).
+    ring_ohm: cable resistances used (line, neutral, cpc). pred_ln/pred_le: (G_FINE,) model
+    values at the best parameters. theta_sd: spread of the position parameters' profile
+    (ring fractions), a measure of how well the readings locate the fault.
+    """
+
+    code: str
+    conductor: str | None
+    step: str | None
+    loglik: float
+    k: int
+    theta: dict = field(default_factory=dict)
+    ring_ohm: tuple[float, float, float] = (np.nan, np.nan, np.nan)
+    pred_ln: np.ndarray | None = None
+    pred_le: np.ndarray | None = None
+    theta_sd: float | None = None
+
+    def score(self, n_readings: int) -> float:
+        """BIC-style score: loglik - k/2 ln(n) + ln(prior)."""
+        return (self.loglik - 0.5 * self.k * np.log(max(n_readings, 2))
+                + np.log(PRIORS[self.code]))
+
+
+def _steps(layout: Layout, marks: np.ndarray, ring: np.ndarray, series=None, extra=None,
+           ln_step: str = "ln", le_step: str = "le") -> tuple[np.ndarray, np.ndarray]:
+    ln = step_resistance(layout, ln_step, marks, ring, series, extra)
+    le = step_resistance(layout, le_step, marks, ring, series, extra)
+    return ln, le
+
+
+def _with_probe(theta_marks: np.ndarray, g: int) -> np.ndarray:
+    """Rows (T*g, 1+m): each hypothesis' marks preceded by every grid position."""
+    t = t_grid(g)
+    n_theta = theta_marks.shape[0]
+    probe = np.tile(t, n_theta)[:, None]
+    return np.concatenate([probe, np.repeat(theta_marks, g, axis=0)], axis=1)
+
+
+def fit_healthy(prep: Prepared, wrong_step: str | None = None) -> Fit:
+    """Sound ring (with the recorded spurs), or a wrong cross-connection in one step.
+
+    wrong_step: None, "ln" (step 2 joined L1-N1, L2-N2) or "le" (step 3 joined L1-CPC1, L2-CPC2).
+    """
+    ring = prep.e2e_ohm.copy()
+    marks = t_grid(G_FINE)[:, None]
+    rings = np.tile(ring, (G_FINE, 1))
+    ln, le = _steps(_PLAIN, marks, rings,
+                    ln_step="ln_wrong" if wrong_step == "ln" else "ln",
+                    le_step="le_wrong" if wrong_step == "le" else "le")
+    ll = float(marginal_loglik(prep, ln[None], le[None])[0]) + e2e_consistency(ring, prep)
+    code = "healthy" if wrong_step is None else "wrong_cross_connection"
+    return Fit(code, None, wrong_step, ll, 0, {}, tuple(ring), ln, le)
+
+
+def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int) -> tuple[np.ndarray, ...]:
+    """theta: (T, 3) rows of (a, b, fraction). Returns loglik (T,), ln, le (T, g), ring (T, 3)."""
+    n = theta.shape[0]
+    ends = np.concatenate([theta[:, :1], theta[:, :2]], axis=1)  # probe parked at a
+    unit = step_resistance(_BRIDGE, "e2e:line", ends, np.ones((n, 3)),
+                           extra_fraction=theta[:, 2:3])
+    ring = prep.e2e_ohm[None, :] / unit[:, None]
+    marks = _with_probe(theta[:, :2], g)
+    rings = np.repeat(ring, g, axis=0)
+    extra = np.repeat(theta[:, 2:3], g, axis=0)
+    ln, le = _steps(_BRIDGE, marks, rings, extra=extra)
+    ln, le = ln.reshape(n, g), le.reshape(n, g)
+    cons = e2e_consistency(prep.e2e_ohm, prep)
+    return marginal_loglik(prep, ln, le) + cons, ln, le, ring
+
+
+def _bridge_grid() -> np.ndarray:
+    pts = (np.arange(12) + 0.5) / 12
+    rows = [(a, b, f) for a in pts for b in pts for f in (0.02, 0.06, 0.15, 0.4)
+            if b - a > 0.1 and a + b <= 1.0 + 1e-9]
+    return np.array(rows)
+
+
+def _refine(evaluate, theta: np.ndarray, ll: np.ndarray, steps: np.ndarray, lower, upper,
+            rounds: int = 3, keep: int = 3) -> tuple[np.ndarray, np.ndarray]:
+    """Local grid refinement: around the best ``keep`` rows, try +-step in each coordinate
+    (``steps`` per coordinate; coordinates with a negative step are scaled by factors instead),
+    halving the steps each round. Returns all evaluated rows and their logliks."""
+    all_theta, all_ll = [theta], [ll]
+    step = steps.astype(float).copy()
+    for _ in range(rounds):
+        best = theta[np.argsort(ll)[-keep:]]
+        cand = []
+        dims = best.shape[1]
+        offsets = np.array(np.meshgrid(*[[-1, 0, 1]] * dims)).reshape(dims, -1).T
+        for row in best:
+            for off in offsets:
+                new = row.copy()
+                for d in range(dims):
+                    if step[d] < 0:
+                        new[d] = row[d] * np.exp(-step[d] * off[d])
+                    else:
+                        new[d] = row[d] + step[d] * off[d]
+                cand.append(new)
+        cand = np.clip(np.array(cand), lower, upper)
+        cand = np.unique(np.round(cand, 6), axis=0)
+        cand_ll = evaluate(cand)
+        theta = np.concatenate([theta, cand])
+        ll = np.concatenate([ll, cand_ll])
+        all_theta.append(cand)
+        all_ll.append(cand_ll)
+        step /= 2
+    return np.concatenate(all_theta), np.concatenate(all_ll)
+
+
+def _position_sd(theta_pos: np.ndarray, ll: np.ndarray) -> float:
+    """Spread (ring fractions) of a position parameter under exp(ll) weights."""
+    w = np.exp(ll - ll.max())
+    w /= w.sum()
+    mean = np.sum(w * theta_pos)
+    return float(np.sqrt(np.sum(w * (theta_pos - mean) ** 2)))
+
+
+def fit_bridge(prep: Prepared) -> Fit:
+    """An interconnection: a cable joining ring positions a < b in all three conductors, of
+    resistance ``fraction`` x the ring's resistance (same cable). 3 parameters."""
+    grid = _bridge_grid()
+    ll, *_ = _bridge_eval(prep, grid, G_COARSE)
+
+    def evaluate(rows):
+        rows = rows.copy()
+        rows[:, 1] = np.maximum(rows[:, 1], rows[:, 0] + 0.02)
+        rows[:, 1] = np.minimum(rows[:, 1], 1.0 - rows[:, 0])
+        return _bridge_eval(prep, rows, G_COARSE)[0]
+
+    theta, lls = _refine(evaluate, grid, ll, np.array([1 / 24, 1 / 24, -0.5]),
+                         [0.005, 0.02, 0.002], [0.49, 0.995, 3.0])
+    best = theta[int(np.argmax(lls))]
+    best[1] = min(max(best[1], best[0] + 0.02), 1.0 - best[0])
+    llb, ln, le, ring = _bridge_eval(prep, best[None], G_FINE)
+    sd = max(_position_sd(theta[:, 0], lls), _position_sd(theta[:, 1], lls))
+    return Fit("interconnection", None, None, float(llb[0]), 3,
+               {"a": float(best[0]), "b": float(best[1]), "fraction": float(best[2])},
+               tuple(ring[0]), ln[0], le[0], sd)
+
+
+def _series_eval(prep: Prepared, conductor: str, ring: np.ndarray, x: np.ndarray,
+                 series_value_s: float, g: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """A series element of ``series_value_s`` siemens in one conductor at each position x."""
+    n = x.shape[0]
+    marks = _with_probe(x[:, None], g)
+    series = np.full((n * g, 3, 2), 1.0 / SHORT_OHM)
+    series[:, CONDUCTOR_INDEX[conductor], 1] = series_value_s
+    rings = np.tile(ring, (n * g, 1))
+    ln, le = _steps(_SPLIT, marks, rings, series=series)
+    ln, le = ln.reshape(n, g), le.reshape(n, g)
+    return marginal_loglik(prep, ln, le), ln, le
+
+
+def _fit_series(prep: Prepared, code: str, conductor: str, ring: np.ndarray,
+                series_s: float, cons: float, k: int, extra: dict) -> Fit:
+    xs = (np.arange(24) + 0.5) / 48  # one half of the ring
+    ll, _, _ = _series_eval(prep, conductor, ring, xs, series_s, G_COARSE)
+
+    def evaluate(rows):
+        return _series_eval(prep, conductor, ring, rows[:, 0], series_s, G_COARSE)[0]
+
+    theta, lls = _refine(evaluate, xs[:, None], ll, np.array([1 / 96]), [0.002], [0.5],
+                         rounds=2)
+    best = float(theta[int(np.argmax(lls)), 0])
+    llb, ln, le = _series_eval(prep, conductor, ring, np.array([best]), series_s, G_FINE)
+    sd = _position_sd(theta[:, 0], lls)
+    return Fit(code, conductor, None, float(llb[0]) + cons, k, {"x": best, **extra},
+               tuple(ring), ln[0], le[0], sd)
+
+
+def fit_open(prep: Prepared, conductor: str) -> Fit | None:
+    """A break in one ring conductor at an unknown position x (its end-to-end reading is OL).
+
+    The broken conductor's cable resistance is taken from the others by the conductor table
+    (line = neutral; cpc = line x ratio). 1 parameter. None when not applicable.
+    """
+    c = CONDUCTOR_INDEX[conductor]
+    e2e = prep.e2e_ohm
+    if not np.isinf(e2e[c]) or np.count_nonzero(np.isinf(e2e)) != 1:
+        return None
+    ring = e2e.copy()
+    ratio = np.array([1.0, prep.ratio_n, prep.ratio_e])
+    others = [i for i in range(3) if i != c and np.isfinite(e2e[i])]
+    if not others:
+        return None
+    ring[c] = float(np.mean([e2e[i] / ratio[i] for i in others])) * ratio[c]
+    cons = e2e_consistency(np.where(np.isinf(e2e), np.nan, e2e), prep)
+    cons += float(reading_loglik(np.array(np.inf), np.array(np.inf)))
+    return _fit_series(prep, "open_conductor", conductor, ring, 0.0, cons, 1, {})
+
+
+def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
+    """A high-resistance joint J ohms in series in one ring conductor at position x.
+
+    J is the conductor's end-to-end excess over what the other two conductors imply.
+    2 parameters (x, J). None when the excess is below JOINT_MIN_OHM.
+    """
+    c = CONDUCTOR_INDEX[conductor]
+    e2e = prep.e2e_ohm
+    if not np.all(np.isfinite(e2e)):
+        return None
+    ratio = np.array([1.0, prep.ratio_n, prep.ratio_e])
+    others = [i for i in range(3) if i != c]
+    expected = float(np.mean([e2e[i] / ratio[i] for i in others])) * ratio[c]
+    joint = float(e2e[c] - expected)
+    if joint < JOINT_MIN_OHM:
+        return None
+    ring = e2e.copy()
+    ring[c] = expected
+    cons = e2e_consistency(ring, prep)
+    return _fit_series(prep, "high_resistance_joint", conductor, ring, 1.0 / joint, cons, 2,
+                       {"r_ohm": joint})
+
+
+def fit_all(prep: Prepared) -> list[Fit]:
+    """Every applicable hypothesis, best score first."""
+    fits: list[Fit | None] = [fit_healthy(prep), fit_healthy(prep, "ln"),
+                              fit_healthy(prep, "le")]
+    if np.all(np.isfinite(prep.e2e_ohm)):
+        fits.append(fit_bridge(prep))
+    for conductor in CONDUCTOR_INDEX:
+        fits.append(fit_open(prep, conductor))
+        fits.append(fit_joint(prep, conductor))
+    n = prep.n_readings()
+    found = [f for f in fits if f is not None]
+    return sorted(found, key=lambda f: f.score(n), reverse=True)
+
+
+def confidences(fits: list[Fit], n_readings: int) -> np.ndarray:
+    """Normalised exp(score) of each fit (sums to 1)."""
+    s = np.array([f.score(n_readings) for f in fits])
+    w = np.exp(s - s.max())
+    return w / w.sum()
+
+
+def position_posterior(prep: Prepared, fit: Fit) -> np.ndarray:
+    """(n_ring, G_FINE) posterior over the t grid of each ring outlet under ``fit``."""
+    ll = outlet_loglik(prep, fit.pred_ln[None], fit.pred_le[None])[0]
+    lme = log_mean_exp(ll, axis=-1)
+    return np.exp(ll - lme[:, None]) / ll.shape[-1]
