@@ -185,7 +185,8 @@ def fit_bridge(prep: Prepared) -> Fit:
     best = theta[int(np.argmax(lls))]
     best[1] = min(max(best[1], best[0] + 0.02), 1.0 - best[0])
     llb, ln, le, ring = _bridge_eval(prep, best[None], G_FINE)
-    sd = max(_position_sd(theta[:, 0], lls), _position_sd(theta[:, 1], lls))
+    # spread over the uniform starting grid only (the refinement samples are not uniform)
+    sd = max(_position_sd(grid[:, 0], ll), _position_sd(grid[:, 1], ll))
     return Fit("interconnection", None, None, float(llb[0]), 3,
                {"a": float(best[0]), "b": float(best[1]), "fraction": float(best[2])},
                tuple(ring[0]), ln[0], le[0], sd)
@@ -216,7 +217,7 @@ def _fit_series(prep: Prepared, code: str, conductor: str, ring: np.ndarray,
                          rounds=2)
     best = float(theta[int(np.argmax(lls)), 0])
     llb, ln, le = _series_eval(prep, conductor, ring, np.array([best]), series_s, G_FINE)
-    sd = _position_sd(theta[:, 0], lls)
+    sd = _position_sd(xs, ll)
     return Fit(code, conductor, None, float(llb[0]) + cons, k, {"x": best, **extra},
                tuple(ring), ln[0], le[0], sd)
 
