@@ -106,6 +106,23 @@ class Reading(fields.Field):
             raise self.make_error("invalid") from None
 
 
+class _IsoText:
+    """Dump ISO text as it is (the record builder gives dates as text), objects as ISO text."""
+
+    def _serialize(self, value, attr, obj, **kwargs):
+        if isinstance(value, str):
+            return value
+        return super()._serialize(value, attr, obj, **kwargs)
+
+
+class Date(_IsoText, fields.Date):
+    default_error_messages = {"invalid": "not a date (YYYY-MM-DD)"}
+
+
+class DateTime(_IsoText, fields.NaiveDateTime):
+    default_error_messages = {"invalid": "not a date and time (YYYY-MM-DDTHH:MM:SS)"}
+
+
 def _items(nested, **kwargs) -> fields.List:
     return fields.List(fields.Nested(nested), error_messages={
         "invalid": "expected a list", "required": "is required", "null": "may not be null"},
@@ -156,8 +173,7 @@ class SafetySchema(StrictSchema):
     locked_off = Flag(load_default=False)
     proved_dead = Flag(load_default=False)
     confirmed_by = _optional(_sized, max_len=120)
-    confirmed_at = _optional(fields.NaiveDateTime, error_messages={
-        "invalid": "not a date and time (YYYY-MM-DDTHH:MM:SS)"})
+    confirmed_at = _optional(DateTime)
 
 
 def _nested_optional(schema) -> fields.Nested:
@@ -198,6 +214,8 @@ class OutletSchema(StrictSchema):
 
 
 class CircuitRecordSchema(StrictSchema):
+    #: a single-circuit record may carry its own format tag; the job document carries it once
+    format = Text(load_only=True, validate=validate.Equal(record.FORMAT, error="must be {other}"))
     circuit = fields.Nested(CircuitSchema, required=True, error_messages={
         "required": "is required", "null": "may not be null"})
     end_to_end = fields.Nested(EndToEndSchema, load_default=lambda: EndToEndSchema().load({}))
@@ -208,7 +226,7 @@ class JobSchema(StrictSchema):
     reference = _sized(40, min_len=1, required=True)
     site = _sized(200, min_len=1, required=True)
     client = _sized(200, load_default="")
-    date = _optional(fields.Date, error_messages={"invalid": "not a date (YYYY-MM-DD)"})
+    date = _optional(Date)
     tester = _optional(_sized, max_len=120)
     notes = Text(load_default="")
 
@@ -334,3 +352,21 @@ class DocumentError(ValueError):
     def __init__(self, errors: list[str]):
         super().__init__("; ".join(errors))
         self.errors = list(errors)
+
+
+# ---------------------------------------------------------------- JSON endpoint replies
+
+
+class ImportResultSchema(Schema):
+    """The reply to a successful import."""
+
+    job_id = fields.Integer()
+    reference = fields.String()
+    url = fields.String()
+    notes = fields.List(fields.String())
+
+
+class ImportErrorsSchema(Schema):
+    """The reply to a refused import: every problem, each ``"path: message"``."""
+
+    errors = fields.List(fields.String())

@@ -1,0 +1,47 @@
+"""Forms of the review: the list filter, and the approve / return / reopen decisions."""
+
+from __future__ import annotations
+
+from flask_wtf import FlaskForm
+from wtforms import SearchField, SelectField, SubmitField, TextAreaField
+from wtforms.validators import DataRequired, Length, Optional
+
+from fieldapp.models import JOB_STATUSES
+
+STATUS_LABELS = {
+    "in_progress": "in progress",
+    "submitted": "submitted",
+    "returned": "returned",
+    "approved": "approved",
+}
+
+
+class FilterForm(FlaskForm):
+    """The job list's filter (a GET form: nothing changes, so no CSRF token)."""
+
+    class Meta:
+        csrf = False
+
+    status = SelectField("Status", choices=[("", "any status")] + [
+        (s, STATUS_LABELS[s]) for s in JOB_STATUSES], validators=[Optional()])
+    q = SearchField("Site or job reference", validators=[Optional(), Length(max=100)])
+    submit = SubmitField("Show")
+
+
+class ApproveForm(FlaskForm):
+    note = TextAreaField("Note for the job (optional)", validators=[Optional(), Length(max=2000)])
+    submit = SubmitField("Approve job")
+
+
+class ReturnForm(FlaskForm):
+    comment = TextAreaField(
+        "What the tester must do", validators=[DataRequired("Say what needs doing."),
+                                               Length(max=2000)])
+    submit = SubmitField("Return to the tester")
+
+
+class ReopenForm(FlaskForm):
+    reason = TextAreaField(
+        "Why the approved job is reopened", validators=[DataRequired("Give the reason."),
+                                                        Length(max=2000)])
+    submit = SubmitField("Reopen job")

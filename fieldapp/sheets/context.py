@@ -1,0 +1,265 @@
+"""A job's results as ready-to-print strings, from plain values only.
+
+Inputs: a job document in the ``ringtest/1`` format (what the JSON export gives), one
+``ringmath.diagnose`` result per circuit in the same order (``None`` where a circuit could not
+be assessed, with the reason in ``problems``), and the people and dates of the job (who tested,
+submitted, reviewed, approved). No models, no Flask, no numpy: the printed sheet
+(fieldapp/sheets/pdf.py) and the supervisor's review page both show this context.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+
+from markupsafe import Markup
+
+from fieldapp.drawings import KIND_WORDS, ring_picture
+from ringmath.messages import CAUTIONS
+
+VERDICT_WORDS = {
+    "satisfactory": "Satisfactory",
+    "investigate": "Investigate",
+    "incomplete": "Incomplete",
+}
+#: The job's overall verdict is its worst circuit's, in this order (worst first).
+VERDICT_ORDER = ("investigate", "incomplete", "satisfactory")
+STATUS_WORDS = {
+    "in_progress": "In progress",
+    "submitted": "Submitted for review",
+    "returned": "Returned to the tester",
+    "approved": "Approved",
+}
+READING_STATUS_WORDS = {
+    "ok": "in band",
+    "high": "HIGH",
+    "low": "LOW",
+    "open": "OPEN",
+    "pending": "not taken",
+}
+STEP1 = (("r1", "r1 (line)"), ("rn", "rn (neutral)"), ("r2", "r2 (cpc)"))
+DASH = "—"
+
+
+def ohm(value) -> str:
+    """A computed resistance for print: two decimals, "OL", or a dash when unknown."""
+    if value is None:
+        return DASH
+    if value == "OL" or (isinstance(value, float) and math.isinf(value)):
+        return "OL"
+    return f"{float(value):.2f}"
+
+
+def recorded(value) -> str:
+    """A reading as it was recorded: at least two decimals, never rounded away."""
+    if value is None:
+        return DASH
+    if value == "OL":
+        return "OL"
+    text = f"{float(value):.2f}"
+    return text if float(text) == float(value) else repr(float(value))
+
+
+def when(value) -> str:
+    """A date or time (object or ISO text) for print; a dash when absent."""
+    if value in (None, ""):
+        return DASH
+    if isinstance(value, str):
+        try:
+            value = dt.datetime.fromisoformat(value) if "T" in value else dt.date.fromisoformat(
+                value)
+        except ValueError:
+            return value
+    if isinstance(value, dt.datetime):
+        return value.strftime("%d %b %Y %H:%M UTC")
+    return value.strftime("%d %b %Y")
+
+
+def verdict_of(diagnoses) -> str | None:
+    """The job's verdict: the worst of its circuits' (a circuit not assessed is incomplete)."""
+    verdicts = {d["verdict"] if d else "incomplete" for d in diagnoses}
+    return next((v for v in VERDICT_ORDER if v in verdicts), None)
+
+
+def _pass_word(ok) -> str:
+    return {True: "pass", False: "FAIL"}.get(ok, DASH)
+
+
+def _yes(flag) -> str:
+    return "yes" if flag else "NO"
+
+
+def _device(circuit: dict) -> str:
+    ocpd = circuit.get("ocpd") or {}
+    curve = f" type {ocpd['curve']}" if ocpd.get("curve") else ""
+    return f"{ocpd.get('standard', '')}{curve} {quantity(ocpd.get('rating_a'))} A".strip()
+
+
+def quantity(value) -> str:
+    """A plain quantity without trailing zeros (32.0 -> "32", 2.5 -> "2.5"); dash if None."""
+    return DASH if value is None else f"{float(value):g}"
+
+
+def _details(circuit: dict) -> list[tuple[str, str]]:
+    rcd = circuit.get("rcd")
+    rcd_text = (f"{quantity(rcd['rated_ma'])} mA" + (f" type {rcd['type']}" if rcd.get("type")
+                                                      else "")) if rcd else "none recorded"
+    safety = circuit.get("safety") or {}
+    ze = circuit.get("ze_ohm")
+    return [
+        ("Protective device (OCPD)", _device(circuit)),
+        ("RCD", rcd_text),
+        ("Live / cpc csa", f"{quantity(circuit.get('live_csa_mm2'))} / "
+                           f"{quantity(circuit.get('cpc_csa_mm2'))} mm²"),
+        ("Ze", f"{ohm(ze)} Ω ({circuit.get('ze_source') or 'measured'})" if ze is not None
+         else "not recorded"),
+        ("Earthing", circuit.get("earthing") or "not recorded"),
+        ("Estimated cable length", f"{quantity(circuit.get('cable_length_m'))} m"
+         if circuit.get("cable_length_m") is not None else "not recorded"),
+        ("Isolated / locked off / proved dead",
+         " / ".join(_yes(safety.get(k)) for k in ("isolated", "locked_off", "proved_dead"))),
+        ("Safety checks confirmed", " ".join(
+            x for x in (safety.get("confirmed_by"), when(safety.get("confirmed_at"))
+                        if safety.get("confirmed_at") else None) if x) or DASH),
+    ]
+
+
+def _reading_status(diagnosis: dict) -> dict[tuple, dict]:
+    return {(r.get("outlet"), r.get("step")): r for r in diagnosis.get("readings") or []}
+
+
+def _status_word(status: dict | None) -> str:
+    return READING_STATUS_WORDS.get((status or {}).get("status"), "")
+
+
+def _outlet_rows(rec: dict, diagnosis: dict) -> list[dict]:
+    points = {p.get("id"): p for p in diagnosis.get("points") or []}
+    checks = _reading_status(diagnosis)
+    labels = {o["id"]: o.get("label") or o["id"] for o in rec.get("outlets") or []}
+    rows = []
+    for n, outlet in enumerate(rec.get("outlets") or [], start=1):
+        point = points.get(outlet["id"], {})
+        fed = outlet.get("spur_from")
+        rows.append({
+            "n": n,
+            "id": outlet["id"],
+            "label": outlet.get("label") or "",
+            "kind": KIND_WORDS.get(outlet.get("kind"), outlet.get("kind") or ""),
+            "fuse": f"{quantity(outlet['fuse_a'])} A" if outlet.get("fuse_a") else "",
+            "fed": f"spur from {labels.get(fed, fed)}" if fed else "ring",
+            "ln": recorded(outlet.get("ln")),
+            "ln_check": _status_word(checks.get((outlet["id"], "ln"))),
+            "le": recorded(outlet.get("le")),
+            "le_check": _status_word(checks.get((outlet["id"], "le"))),
+            "r1r2": ohm(point.get("r1r2_ohm")),
+            "zs": ohm(point.get("zs_ohm")),
+            "zs_max": ohm(point.get("zs_max_ohm")),
+            "result": _pass_word(point.get("ok")),
+            "failed": point.get("ok") is False,
+        })
+    return rows
+
+
+def _findings(diagnosis: dict) -> list[dict]:
+    return [{
+        "severity": (f.get("severity") or "").upper(),
+        "message": f.get("message") or "",
+        "next_check": f.get("next_check") or "",
+        "outlets": ", ".join(str(o) for o in f.get("outlets") or []),
+    } for f in diagnosis.get("findings") or []]
+
+
+def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str | None) -> dict:
+    circuit = rec.get("circuit") or {}
+    e2e = rec.get("end_to_end") or {}
+    ctx = {
+        "index": index + 1,
+        "reference": circuit.get("reference") or f"Circuit {index + 1}",
+        "description": circuit.get("description") or "",
+        "details": _details(circuit),
+        "problem": problem,
+        "diagnosis": diagnosis is not None,
+    }
+    diagnosis = diagnosis or {}
+    checks = _reading_status(diagnosis)
+    ctx["step1"] = [{"key": key, "name": label, "value": recorded(e2e.get(key)),
+                     "check": _status_word(checks.get((None, key)))} for key, label in STEP1]
+    expected = diagnosis.get("expected") or {}
+    ctx["expected"] = {
+        "ln": ohm(expected.get("ln_ohm")),
+        "le": ohm(expected.get("le_ohm")),
+        "ln_band": " – ".join(ohm(v) for v in expected.get("ln_band_ohm") or []) or DASH,
+        "le_band": " – ".join(ohm(v) for v in expected.get("le_band_ohm") or []) or DASH,
+    }
+    ctx["outlets"] = _outlet_rows(rec, diagnosis)
+    summary = diagnosis.get("circuit") or {}
+    ok = None
+    if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
+        ok = summary["zs_ohm"] <= summary["zs_max_ohm"]
+    ctx["summary"] = {
+        "r1r2": ohm(summary.get("r1r2_ohm")),
+        "zs": ohm(summary.get("zs_ohm")),
+        "zs_max": ohm(summary.get("zs_max_ohm")),
+        "zs_tabulated": ohm(summary.get("zs_tabulated_ohm")),
+        "device": summary.get("device") or _device(circuit),
+        "limit_source": summary.get("limit_source") or "",
+        "result": _pass_word(ok),
+    }
+    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), "Not assessed")
+    ctx["summary_sentence"] = diagnosis.get("summary") or problem or ""
+    ctx["findings"] = _findings(diagnosis)
+    ctx["picture"] = ring_picture(diagnosis) if diagnosis else Markup("")
+    return ctx
+
+
+def _cautions(diagnoses) -> list[str]:
+    """The diagnoses' cautions, each once; ringmath's own list when no diagnosis ran."""
+    seen: list[str] = []
+    for d in diagnoses:
+        for text in (d or {}).get("cautions") or []:
+            if text not in seen:
+                seen.append(text)
+    return seen or list(CAUTIONS)
+
+
+def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *,
+                  problems: list | None = None, generated_at=None) -> dict:
+    """Everything the sheet prints, as strings and lists of strings.
+
+    document: a ``ringtest/1`` job document; diagnoses: one ``ringmath.diagnose`` result per
+    circuit (or None); people: ``tester``, ``submitted_at``, ``reviewed_by``, ``reviewed_at``,
+    ``approved_by``, ``approved_at``, ``review_comment``, ``status`` (any may be missing);
+    problems: per circuit, why it was not assessed.
+    """
+    records = document.get("circuits") or []
+    if len(diagnoses) != len(records):
+        raise ValueError(f"diagnoses: {len(diagnoses)} given for {len(records)} circuits")
+    problems = list(problems or [None] * len(records))
+    people = people or {}
+    job = document.get("job") or {}
+    verdict = verdict_of(diagnoses)
+    return {
+        "job": {
+            "reference": job.get("reference") or "",
+            "site": job.get("site") or "",
+            "client": job.get("client") or "",
+            "date": when(job.get("date")),
+            "notes": job.get("notes") or "",
+        },
+        "people": [
+            ("Tested by", people.get("tester") or job.get("tester") or DASH),
+            ("Submitted", when(people.get("submitted_at"))),
+            ("Reviewed by", people.get("reviewed_by") or DASH),
+            ("Reviewed", when(people.get("reviewed_at"))),
+            ("Approved by", people.get("approved_by") or DASH),
+            ("Approved", when(people.get("approved_at"))),
+        ],
+        "status": STATUS_WORDS.get(people.get("status"), people.get("status") or ""),
+        "review_comment": people.get("review_comment") or "",
+        "verdict": VERDICT_WORDS.get(verdict, "Not assessed"),
+        "circuits": [_circuit_context(i, rec, d, p)
+                     for i, (rec, d, p) in enumerate(zip(records, diagnoses, problems,
+                                                         strict=True))],
+        "cautions": _cautions(diagnoses),
+        "generated": when(generated_at or dt.datetime.now(dt.UTC).replace(tzinfo=None)),
+    }
