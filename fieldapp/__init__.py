@@ -1,0 +1,111 @@
+"""The field app: a thin Flask layer over ringmath.
+
+``create_app(config=None)`` builds the app; config comes from the environment (DATABASE_URL,
+SECRET_KEY) and may be overridden by the ``config`` mapping (tests pass their own).
+"""
+
+from __future__ import annotations
+
+import importlib
+import importlib.util
+import os
+from pathlib import Path
+
+from flask import Flask, abort, redirect, render_template, send_from_directory, url_for
+from flask_wtf.csrf import CSRFError
+from werkzeug.routing import BuildError
+
+from fieldapp import config as app_config
+from fieldapp.extensions import csrf, db, login_manager
+
+ROOT = Path(__file__).resolve().parent.parent
+#: Blueprints built in this package; optional ones are registered when their module exists.
+BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api")
+OPTIONAL_BLUEPRINTS = ("fieldapp.review", "fieldapp.export")
+
+
+def create_app(config: dict | None = None) -> Flask:
+    """The application factory."""
+    overrides = dict(config or {})
+    instance_path = (overrides.pop("INSTANCE_PATH", None)
+                     or os.environ.get("FIELDAPP_INSTANCE_PATH") or str(ROOT / "instance"))
+    app = Flask(
+        __name__,
+        instance_path=instance_path,
+        template_folder=str(ROOT / "templates"),
+        static_folder=str(ROOT / "static"),
+        static_url_path="/static",
+    )
+    os.makedirs(app.instance_path, exist_ok=True)
+    app.config.update(app_config.base_config(app.instance_path))
+    app.config.update(overrides)
+    if not app.config.get("SECRET_KEY"):
+        app.config["SECRET_KEY"] = app_config.secret_key(app.instance_path)
+
+    db.init_app(app)
+    csrf.init_app(app)
+    login_manager.init_app(app)
+    login_manager.login_view = "auth.login"
+    login_manager.login_message = "Please log in to continue."
+    login_manager.login_message_category = "info"
+
+    for name in BLUEPRINTS:
+        app.register_blueprint(importlib.import_module(name).bp)
+    for name in OPTIONAL_BLUEPRINTS:
+        if importlib.util.find_spec(name) is not None:
+            module = importlib.import_module(name)
+            blueprint = getattr(module, "bp", None)
+            if blueprint is not None:
+                app.register_blueprint(blueprint)
+
+    _register_pages(app)
+    return app
+
+
+def _url_if(endpoint: str, **values) -> str | None:
+    """url_for, or None when the endpoint is not there (blueprints that are optional)."""
+    try:
+        return url_for(endpoint, **values)
+    except BuildError:
+        return None
+
+
+def _register_pages(app: Flask) -> None:
+    from fieldapp.auth.roles import can_test
+
+    @app.get("/")
+    def index():
+        return redirect(url_for("jobs.index"))
+
+    @app.get("/sw.js")
+    def service_worker():
+        if not (Path(app.static_folder) / "sw.js").exists():
+            abort(404)
+        response = send_from_directory(app.static_folder, "sw.js", max_age=0)
+        response.headers["Service-Worker-Allowed"] = "/"
+        response.headers["Cache-Control"] = "no-cache"
+        return response
+
+    @app.context_processor
+    def page_globals():
+        return {
+            "has_offline_js": (Path(app.static_folder) / "js" / "offline.js").exists(),
+            "has_endpoint": lambda endpoint: endpoint in app.view_functions,
+            "url_if": _url_if,
+            "can_test": can_test,
+        }
+
+    @app.errorhandler(CSRFError)
+    def csrf_error(error):
+        return render_template("error.html", title="Form expired",
+                               message="This form was open too long or came from another page. "
+                                       "Go back, reload the page and try again.",
+                               ), 400
+
+    for code, title, message in (
+        (403, "Not allowed", "Your role does not allow this. Ask a tester or supervisor."),
+        (404, "Not found", "There is nothing at this address."),
+    ):
+        app.register_error_handler(
+            code, lambda _e, c=code, t=title, m=message: (
+                render_template("error.html", title=t, message=m), c))

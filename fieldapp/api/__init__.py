@@ -1,0 +1,7 @@
+"""JSON endpoints used by the page scripts (a reading in, instant feedback out)."""
+
+from flask import Blueprint
+
+bp = Blueprint("api", __name__, url_prefix="/api")
+
+from fieldapp.api import views  # noqa: E402, F401

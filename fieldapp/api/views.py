@@ -1,0 +1,139 @@
+"""JSON endpoints: store one reading, get a circuit's record and feedback.
+
+Same rules as the forms (fieldapp.changes does the writing): roles, job status, safety checks,
+ringmath's reading parser, and the client id as idempotency key. Errors are JSON with the
+field they concern: ``{"errors": {"value": ["..."]}}``.
+"""
+
+from __future__ import annotations
+
+from functools import wraps
+
+from flask import jsonify, render_template, request
+from flask_login import current_user
+from marshmallow import ValidationError
+
+from fieldapp import changes
+from fieldapp.api import bp
+from fieldapp.api.schemas import CircuitOut, ReadingIn, ReadingOut
+from fieldapp.auth.roles import TESTING_ROLES
+from fieldapp.extensions import db
+from fieldapp.models import Circuit
+from fieldapp.records import circuit_record, diagnose_circuit
+from fieldapp.ringtest import feedback as fb
+from fieldapp.ringtest.views import anchor_for, reading_message
+from fieldapp.web import actor
+
+
+def _error(status: int, field: str, message: str):
+    return jsonify({"errors": {field: [message]}}), status
+
+
+def api_login(*roles: str):
+    """401 / 403 as JSON instead of the login page redirect."""
+
+    def decorate(view):
+        @wraps(view)
+        def wrapped(*args, **kwargs):
+            if not current_user.is_authenticated:
+                return _error(401, "_auth", "Log in again: the session has ended.")
+            if roles and current_user.role not in roles:
+                return _error(403, "_auth", "Your role cannot enter readings.")
+            return view(*args, **kwargs)
+
+        return wrapped
+
+    return decorate
+
+
+def _circuit(circuit_id: int):
+    circuit = db.session.get(Circuit, circuit_id)
+    if circuit is None:
+        return None, _error(404, "circuit", "No such circuit.")
+    return circuit, None
+
+
+@bp.post("/circuits/<int:circuit_id>/readings")
+@api_login(*TESTING_ROLES)
+def post_reading(circuit_id: int):
+    circuit, missing = _circuit(circuit_id)
+    if missing:
+        return missing
+    body = request.get_json(silent=True)
+    if not isinstance(body, dict):
+        return _error(400, "_body", "Send a JSON object.")
+    try:
+        data = ReadingIn().load(body)
+    except ValidationError as error:
+        return jsonify({"errors": error.messages}), 400
+    try:
+        changes.check_ready_for_readings(circuit)
+    except changes.Refused as refused:
+        return _error(409, "_state", str(refused))
+    outlet = None
+    if data["step"] in changes.OUTLET_READINGS:
+        outlet = next((o for o in changes.live_outlets(circuit) if o.key == data["outlet"]), None)
+        if outlet is None:
+            return _error(400, "outlet", "No such outlet on this circuit.")
+    if data["value"] is None or (isinstance(data["value"], str) and not data["value"].strip()):
+        return _error(400, "value", "Type the reading in ohms, or tap OL if the meter shows OL.")
+    try:
+        result = changes.set_reading(circuit, data["step"], data["value"], actor(),
+                                     outlet=outlet, client_id=data["client_id"])
+    except ValueError as error:
+        db.session.rollback()
+        return _error(400, "value", reading_message(error))
+    db.session.commit()
+    return jsonify(ReadingOut().dump(_reading_reply(circuit, data, result))), 200
+
+
+def _reading_reply(circuit: Circuit, data: dict, result: changes.ReadingWrite) -> dict:
+    diagnosis, _ = diagnose_circuit(circuit)
+    key = data["outlet"] if data["step"] in changes.OUTLET_READINGS else None
+    feedback = fb.feedback(diagnosis, data["step"], key)
+    leading = fb.leading(diagnosis)
+    step = "e2e" if data["step"] in changes.CIRCUIT_READINGS else data["step"]
+    next_anchor = _next_anchor(circuit, step)
+    return {
+        "stored": not result.duplicate,
+        "duplicate": result.duplicate,
+        "step": data["step"],
+        "outlet": key,
+        "value": result.new,
+        "previous": result.old,
+        "feedback": feedback,
+        "leading": leading,
+        "next_anchor": next_anchor,
+        "message": ("Already saved." if result.duplicate else
+                    f"Saved {fb.ohm(result.new)}."),
+        "html": {
+            "feedback": render_template("ringtest/_feedback.html", fbk=feedback,
+                                        value=result.new),
+            "leading": render_template("ringtest/_leading.html", leading=leading,
+                                       names=fb.outlet_names(diagnosis)),
+        },
+    }
+
+
+def _next_anchor(circuit: Circuit, step: str) -> str | None:
+    if step == "e2e":
+        pending = [f for f in changes.CIRCUIT_READINGS if getattr(circuit, f) is None]
+        return anchor_for(pending[0], None) if pending else None
+    pending = [o.key for o in changes.live_outlets(circuit) if getattr(o, step) is None]
+    return anchor_for(step, pending[0]) if pending else None
+
+
+@bp.get("/circuits/<int:circuit_id>")
+@api_login()
+def get_circuit(circuit_id: int):
+    circuit, missing = _circuit(circuit_id)
+    if missing:
+        return missing
+    diagnosis, _ = diagnose_circuit(circuit)
+    return jsonify(CircuitOut().dump({
+        "circuit_id": circuit.id,
+        "record": circuit_record(circuit),
+        "leading": fb.leading(diagnosis),
+        "readings": (diagnosis or {}).get("readings") or [],
+        "expected": (diagnosis or {}).get("expected"),
+    }))

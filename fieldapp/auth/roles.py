@@ -1,0 +1,41 @@
+"""Role checks, enforced on the server."""
+
+from __future__ import annotations
+
+from functools import wraps
+
+from flask import abort
+from flask_login import current_user, login_required
+
+#: Roles that create jobs and enter readings.
+TESTING_ROLES = ("apprentice", "tester")
+#: Roles that review, return and approve submitted jobs.
+REVIEW_ROLES = ("supervisor",)
+
+
+def role_required(*roles: str):
+    """View decorator: logged in, and with one of ``roles`` (403 otherwise)."""
+
+    def decorate(view):
+        @wraps(view)
+        @login_required
+        def wrapped(*args, **kwargs):
+            if current_user.role not in roles:
+                abort(403)
+            return view(*args, **kwargs)
+
+        return wrapped
+
+    return decorate
+
+
+def can_test(user=None) -> bool:
+    """True when the user may create jobs and enter readings."""
+    user = current_user if user is None else user
+    return bool(getattr(user, "is_authenticated", False)) and user.role in TESTING_ROLES
+
+
+def can_review(user=None) -> bool:
+    """True when the user may review and approve jobs."""
+    user = current_user if user is None else user
+    return bool(getattr(user, "is_authenticated", False)) and user.role in REVIEW_ROLES

@@ -1,0 +1,7 @@
+"""The guided ring test of one circuit: safety checks, three steps, results."""
+
+from flask import Blueprint
+
+bp = Blueprint("ringtest", __name__, url_prefix="/circuits")
+
+from fieldapp.ringtest import views  # noqa: E402, F401

@@ -1,0 +1,101 @@
+"""Plain values for the pages from ``ringmath.diagnose`` output: no computation of our own.
+
+The diagnosis dict already carries the expected value, band and status of every reading and
+the findings in order of likelihood; these helpers only pick the right entry and put it in
+words for the page and the JSON feedback.
+"""
+
+from __future__ import annotations
+
+STATUS_WORDS = {
+    "ok": "in band",
+    "high": "too high",
+    "low": "too low",
+    "open": "open circuit",
+    "pending": "not taken yet",
+}
+VERDICT_WORDS = {
+    "satisfactory": "Satisfactory",
+    "investigate": "Investigate",
+    "incomplete": "Not finished",
+}
+SEVERITY_WORDS = {"fault": "Fault", "warning": "Check", "info": "Note"}
+
+
+def ohm(value, places: int = 2) -> str:
+    """A reading or resistance for display: "0.26 Ω", "OL" or "—"."""
+    if value is None:
+        return "—"
+    if value == "OL":
+        return "OL"
+    if isinstance(value, str):
+        try:
+            value = float(value)
+        except ValueError:
+            return value
+    return f"{value:.{places}f} Ω"
+
+
+def reading_entry(diagnosis: dict | None, field: str, key: str | None) -> dict | None:
+    """The diagnosis' entry for one reading (step 1: key None), or None."""
+    if not diagnosis:
+        return None
+    for entry in diagnosis.get("readings") or []:
+        if entry.get("step") == field and (entry.get("outlet") or None) == (key or None):
+            return entry
+    return None
+
+
+def feedback(diagnosis: dict | None, field: str, key: str | None) -> dict | None:
+    """What to show beside a reading: expected value, band, how far off, in or out of band."""
+    entry = reading_entry(diagnosis, field, key)
+    if entry is None:
+        return None
+    status = entry.get("status") or "pending"
+    expected = entry.get("expected_ohm")
+    low, high = entry.get("low_ohm"), entry.get("high_ohm")
+    deviation = entry.get("deviation_ohm")
+    parts = []
+    if expected is not None:
+        band = f" (band {ohm(low)} to {ohm(high)})" if low is not None and high is not None else ""
+        parts.append(f"Expected about {ohm(expected)}{band}.")
+    if deviation is not None and status != "pending":
+        direction = "above" if deviation > 0 else "below"
+        parts.append(f"{ohm(abs(deviation))} {direction} expected." if deviation else
+                     "Exactly as expected.")
+    return {
+        "status": status,
+        "status_words": STATUS_WORDS.get(status, status),
+        "expected_ohm": expected,
+        "low_ohm": low,
+        "high_ohm": high,
+        "deviation_ohm": deviation,
+        "text": " ".join(parts),
+        "ok": status == "ok",
+        "alert": status in ("high", "low", "open"),
+    }
+
+
+def leading(diagnosis: dict | None) -> dict | None:
+    """The current leading statement: verdict, summary and the first (most likely) finding."""
+    if not diagnosis:
+        return None
+    findings = diagnosis.get("findings") or []
+    top = findings[0] if findings else None
+    verdict = diagnosis.get("verdict") or "incomplete"
+    return {
+        "verdict": verdict,
+        "verdict_words": VERDICT_WORDS.get(verdict, verdict),
+        "summary": diagnosis.get("summary") or "",
+        "finding": top,
+        "severity_words": SEVERITY_WORDS.get(top["severity"], "") if top else "",
+    }
+
+
+def outlet_names(diagnosis: dict | None) -> dict[str, str]:
+    """Outlet id -> "a · Kitchen by door" for findings that list outlet ids."""
+    names = {}
+    for point in (diagnosis or {}).get("points") or []:
+        label = point.get("label") or ""
+        names[point["id"]] = f"{point['id']} · {label}" if label else point["id"]
+    return names
