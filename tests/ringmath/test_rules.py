@@ -85,8 +85,10 @@ def test_findings_are_warnings_with_outlets_and_advice():
     assert items.outlets == ("a", "t", "u")
 
 
-def test_fuse_rating_not_bs_1362_is_refused():
+@pytest.mark.parametrize("fuse_a", [4, 0.5, 32, None])
+def test_fuse_rating_not_bs_1362_is_refused(fuse_a):
+    # BS 1362 ratings 1, 2, 3, 5, 7, 10, 13 A; records built in code skip the parser's check.
     test = RingTest(circuit=Circuit(ocpd=Ocpd("BS EN 60898", "B", 32)),
-                    outlets=(Outlet("a"), Outlet("f", kind="fcu", fuse_a=4, spur_from="a")))
+                    outlets=(Outlet("a"), Outlet("f", kind="fcu", fuse_a=fuse_a, spur_from="a")))
     with pytest.raises(ValueError, match=r"^outlets\[1\]\.fuse_a:"):
         topology_findings(test)
