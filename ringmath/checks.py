@@ -125,7 +125,8 @@ def cpc_ratio_tolerance(r1_ohm: float, r2_ohm: float) -> float:
 
 
 def _end_to_end_limits(test: RingTest) -> dict[str, tuple]:
-    """(expected, low, high) in ohms for r1, rn and r2, None where there is no reference."""
+    """(expected, low, high) in ohms (0.01 Ω) for r1, rn and r2, None where there is no
+    reference; the readings list and the findings both judge against these figures."""
     e, c = test.end_to_end, test.circuit
     limits = {"r1": (None, None, None), "rn": (None, None, None), "r2": (None, None, None)}
     if c.cable_length_m is not None:
@@ -138,7 +139,8 @@ def _end_to_end_limits(test: RingTest) -> dict[str, tuple]:
             r2_ohm = e.r1_ohm * ring_cpc_ratio(test)
             tol = cpc_ratio_tolerance(e.r1_ohm, e.r2_ohm)
             limits["r2"] = (r2_ohm, r2_ohm * (1 - tol), r2_ohm * (1 + tol))
-    return limits
+    return {step: tuple(None if x is None else round(x, 2) for x in values)
+            for step, values in limits.items()}
 
 
 def end_to_end_findings(test: RingTest) -> list[Finding]:
@@ -155,8 +157,9 @@ def end_to_end_findings(test: RingTest) -> list[Finding]:
     limits = _end_to_end_limits(test)
     if limits["r2"][0] is not None:
         findings.extend(_cpc_ratio_finding(test, *limits["r2"]))
-    if limits["r1"][0] is not None and finite(e.r1_ohm):
-        findings.extend(_cable_length_finding(e.r1_ohm, limits["r1"][0], c))
+    length_ohm, low_ohm, high_ohm = limits["r1"]
+    if length_ohm is not None and finite(e.r1_ohm) and not low_ohm <= e.r1_ohm <= high_ohm:
+        findings.append(_cable_length_finding(e.r1_ohm, length_ohm, c))
     return findings
 
 
@@ -213,10 +216,8 @@ def _cpc_ratio_finding(test: RingTest, r2_expected_ohm: float, low_ohm: float,
                     message=head + why, next_check=look)]
 
 
-def _cable_length_finding(r1_ohm: float, expected_ohm: float, c: Circuit) -> list[Finding]:
+def _cable_length_finding(r1_ohm: float, expected_ohm: float, c: Circuit) -> Finding:
     deviation = r1_ohm / expected_ohm - 1
-    if abs(deviation) <= CABLE_LENGTH_INFO:
-        return []
     if deviation > 0:
         extra = ("A large excess can also mean a high-resistance joint or a longer route than "
                  "thought.")
@@ -225,7 +226,7 @@ def _cable_length_finding(r1_ohm: float, expected_ohm: float, c: Circuit) -> lis
         extra = ("A large shortfall can also mean the ends do not belong to one ring (part of the "
                  "ring bypassed or interconnected).")
         look = "Check the length estimate; if it is sound, confirm both line ends are this ring's."
-    return [Finding(
+    return Finding(
         code="cable_length",
         severity="warning" if abs(deviation) > CABLE_LENGTH_WARNING else "info",
         conductor="line", step=None,
@@ -235,7 +236,7 @@ def _cable_length_finding(r1_ohm: float, expected_ohm: float, c: Circuit) -> lis
                  "+0.4 % per °C), because real cable is a few percent below the BS EN 60228 "
                  f"maximum, or when the leads were not nulled. {extra}"),
         next_check=look,
-    )]
+    )
 
 
 # ------------------------------------------------------------------ steps 2 and 3 (outlets)
@@ -356,18 +357,21 @@ def spur_findings(test: RingTest) -> list[Finding]:
 
     "spur_below_parent": a spur reads lower than its parent by more than tolerance_ohm (a dead
     end cannot lower the reading). "spur_excess_high": its rise is more than
-    spur_excess_limit_ohm + tolerance. "spur_excess": the step 3 rise disagrees with
-    le_per_ln_factor × the step 2 rise by more than max(BAND_SIGMAS × sigma of the difference,
-    MIN_TOLERANCE_OHM): extra resistance in the spur's cpc (rise too big) or neutral (too small).
+    spur_excess_limit_ohm + tolerance (the "low" and "high" of reading_checks). "spur_excess":
+    the step 3 rise disagrees with le_per_ln_factor × the step 2 rise by more than
+    max(BAND_SIGMAS × sigma of the difference, MIN_TOLERANCE_OHM): extra resistance in the
+    spur's cpc (rise too big) or neutral (too small).
     """
     findings = []
+    exp = expected(test)
     for outlet in test.outlets:
         if outlet.on_ring:
             continue
         rises = _spur_excesses(test, outlet)
-        low = [s for s, (_, ref, rise) in rises.items() if rise < -tolerance_ohm(ref)]
-        high = [s for s, (_, ref, rise) in rises.items()
-                if rise > spur_excess_limit_ohm(test, outlet, s) + tolerance_ohm(ref)]
+        status = {s: _check(outlet.id, s, rises[s][0], _limits(test, outlet, s, exp))["status"]
+                  for s in rises}
+        low = [s for s in rises if status[s] == "low"]
+        high = [s for s in rises if status[s] == "high"]
         if low:
             findings.append(_spur_below(outlet, low, rises))
         if high:

@@ -257,3 +257,27 @@ def _direct(outlets=(), **circuit):
 def test_bad_input_names_the_field(call, field):
     with pytest.raises(ValueError, match=rf"^{field}"):
         call()
+
+
+@pytest.mark.parametrize("step", ["rn", "r2"])
+def test_reading_status_and_findings_agree(step):
+    # Sweep one end-to-end reading through its band: the readings list and the findings must
+    # flag exactly the same values.
+    code = {"rn": "ends_mismatch", "r2": "cpc_ratio"}[step]
+    flagged = []
+    for hundredths in range(40, 110):
+        test = record(end_to_end={**E2E, step: hundredths / 100})
+        status = _by(test, None, step)["status"]
+        found = code in _codes(checks.end_to_end_findings(test))
+        assert (status != "ok") == found, hundredths
+        flagged.append(found)
+    assert any(flagged) and not all(flagged)
+
+
+def test_cable_length_status_and_finding_agree():
+    for hundredths in range(20, 60):
+        r1 = hundredths / 100
+        test = record(end_to_end={"r1": r1, "rn": r1, "r2": round(r1 * 1.633, 2)},
+                      cable_length_m=50)
+        found = "cable_length" in _codes(checks.end_to_end_findings(test))
+        assert (_by(test, None, "r1")["status"] != "ok") == found, r1
