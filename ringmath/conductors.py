@@ -73,7 +73,8 @@ def expected_end_to_end_ohm(length_m: float, csa_mm2: float, *,
         raise ValueError(f"length_m: expected a number of metres, got {length_m!r}")
     if not math.isfinite(length_m) or length_m <= 0:
         raise ValueError(f"length_m: {length_m!r} m is not a positive length")
-    if not -40.0 <= temperature_c <= 120.0:
+    if isinstance(temperature_c, bool) or not isinstance(temperature_c, int | float) or not (
+            -40.0 <= temperature_c <= 120.0):
         raise ValueError(f"temperature_c: {temperature_c!r} °C is outside -40..120 °C")
     per_m_ohm = resistance_mohm_per_m(csa_mm2) / 1000.0
     warming = 1 + ALPHA_COPPER_PER_K * (temperature_c - REFERENCE_TEMPERATURE_C)

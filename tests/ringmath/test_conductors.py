@@ -62,6 +62,7 @@ def test_end_to_end_rises_with_temperature():
         (lambda: expected_end_to_end_ohm(None, 2.5), "length_m"),
         (lambda: expected_end_to_end_ohm(40, 3), "csa_mm2"),
         (lambda: expected_end_to_end_ohm(40, 2.5, temperature_c=500), "temperature_c"),
+        (lambda: expected_end_to_end_ohm(40, 2.5, temperature_c="20"), "temperature_c"),
     ],
 )
 def test_bad_input_names_the_field(call, field):
