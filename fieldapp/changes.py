@@ -93,8 +93,36 @@ def reading_text(value: float | None) -> str | None:
     return repr(round(float(value), 4))
 
 
+#: Job fields that submitting, reviewing and reopening change: writable on a locked job.
+REVIEW_FIELDS = ("status", "submitted_at", "reviewed_by_id", "reviewed_at", "review_comment",
+                 "approved_by_id", "approved_at")
+
+
+def _job_of(obj) -> Job | None:
+    if isinstance(obj, Job):
+        return obj
+    circuit = obj if isinstance(obj, Circuit) else db.session.get(Circuit, obj.circuit_id)
+    return circuit.job if circuit is not None else None
+
+
+#: db.session.info key: ids of the jobs created in this session (built, not yet locked).
+NEW_JOBS = "fieldapp.new_jobs"
+
+
+def check_writable(obj, field: str) -> None:
+    """The server's one lock, checked on every logged write: Refused when the job is not
+    editable (submitted or approved), except for the job's own review fields and a job that
+    this same session is creating."""
+    job = _job_of(obj)
+    if job is None or (obj is job and field in REVIEW_FIELDS):
+        return
+    if job.id not in db.session.info.get(NEW_JOBS, ()):
+        check_editable(job)
+
+
 def log(obj, field: str, old, new, actor: Actor, client_id: str | None = None) -> ChangeLog:
-    """Append one ChangeLog row for obj.field (old -> new)."""
+    """Append one ChangeLog row for obj.field (old -> new); Refused on a locked job."""
+    check_writable(obj, field)
     row = ChangeLog(
         at=utcnow(), user_id=actor.user_id, device=(actor.device or "")[:200],
         entity=entity_name(obj), entity_id=obj.id, circuit_id=_circuit_id(obj), field=field,
@@ -124,6 +152,8 @@ def create(model, values: dict, actor: Actor, client_id: str | None = None):
     obj = model(**values)
     db.session.add(obj)
     db.session.flush()
+    if isinstance(obj, Job):
+        db.session.info.setdefault(NEW_JOBS, set()).add(obj.id)
     log(obj, "created", None, getattr(obj, "reference", None) or getattr(obj, "key", None)
         or obj.id, actor, client_id)
     for name, value in values.items():
