@@ -126,12 +126,14 @@ def run(cases: int, healthy: int, seed: int) -> None:
     faulty = [x for x in rows if x["code"]]
     loc = [x for x in faulty if x["locatable"]]
     well = [x for x in rows if x["code"] is None]
-    print(f"{'all faults':24} {len(faulty):4} {pct(sum(x['detected'] for x in faulty), len(faulty)):>9} "
+    detected = pct(sum(x["detected"] for x in faulty), len(faulty))
+    print(f"{'all faults':24} {len(faulty):4} {detected:>9} "
           f"{pct(sum(x['right'] for x in faulty), len(faulty)):>8} "
           f"{pct(sum(x['located'] for x in loc), len(loc)):>9} "
           f"{pct(sum(x['hand'] for x in faulty), len(faulty)):>10}")
-    print(f"\nfalse alarms on healthy rings: model {pct(sum(x['flagged'] for x in well), len(well))}"
-          f", hand rule {pct(sum(x['hand'] for x in well), len(well))}")
+    model_fa = pct(sum(x["flagged"] for x in well), len(well))
+    hand_fa = pct(sum(x["hand"] for x in well), len(well))
+    print(f"\nfalse alarms on healthy rings: model {model_fa}, hand rule {hand_fa}")
     print(f"points with an optimistic R1+R2: {optimistic} of {points}")
 
     print("\nmedian diagnosis time (healthy rings, 15 each):")

@@ -5,7 +5,8 @@ readings are re-explained: as an unrecorded spur (both readings raised in the sp
 ratio), a high-resistance joint at its terminals (line: both readings raised alike; neutral:
 step 2 only; cpc: step 3 only), or a pattern of "OL" readings (swapped terminals or a
 conductor not connected at the outlet). Each alternative's gain is a log-likelihood ratio
-with the same BIC penalty and prior as the whole-ring fits (``ringmath.fitting``).
+the excess resistance integrated over a uniform prior range (Bayesian evidence, so no extra
+penalty is needed) and the outlet's prior probability of that fault.
 
 Two alternatives that predict the same readings tie exactly and are both reported, with the
 measurement that tells them apart:
@@ -25,7 +26,6 @@ from ringmath.fitting import JOINT_MIN_OHM, Fit
 from ringmath.likelihood import (
     P_OL_FALSE,
     Prepared,
-    _profile_spur,
     log_mean_exp,
     outlet_loglik,
     reading_loglik,
@@ -38,9 +38,12 @@ LOCAL_PRIORS = {
     "reversed_polarity": 0.01,
     "open_conductor": 0.01,
 }
-#: Smallest spur line resistance that makes an unrecorded spur worth naming (ohms; about
-#: 2 m of 2.5 mm² cable).
-SPUR_MIN_OHM = 0.015
+#: Prior range of an unrecorded spur's line resistance, ohms (about 2 m to 50 m of 2.5 mm²),
+#: and of a joint's resistance; the evidence averages over a uniform grid of R_POINTS values
+#: in the range, so a larger excess has to earn its place (the Occam factor).
+SPUR_RANGE_OHM = (0.015, 0.4)
+JOINT_RANGE_OHM = (JOINT_MIN_OHM, 1.0)
+R_POINTS = 40
 
 #: OL pattern (ln is OL, le is OL) -> the tied explanations as (code, conductor, swap)
 OL_PATTERNS = {
@@ -71,6 +74,13 @@ class LocalFault:
         shares it)."""
         p = 1.0 / (1.0 + np.exp(-self.gain))
         return float(p / 2 if self.tie else p)
+
+
+def _best_fit(x: float) -> float:
+    """Highest log-likelihood a reading of ``x`` ohms can get from any model value."""
+    if np.isnan(x) or np.isinf(x):
+        return 0.0
+    return float(reading_loglik(np.array(x), np.array(x))) + 0.05
 
 
 def _penalty(k: int, n: int, code: str) -> float:
@@ -105,26 +115,30 @@ def local_faults(prep: Prepared, fit: Fit) -> list[LocalFault]:
         if np.isnan(ln) and np.isnan(le):
             continue
         own = reading_loglik(ln, p_ln) + reading_loglik(le, p_le)
-        rest = base[i] - own
+        rest = (base[i] - own)[:, None]  # (G, 1)
+        # No alternative can beat "as recorded" when the readings already sit on the model:
+        # its evidence is at most max(rest) + the best possible fit of the two readings.
+        ceiling = float(rest.max()) + _best_fit(ln) + _best_fit(le)
+        if ceiling + np.log(max(LOCAL_PRIORS.values())) < float(asis[i]):
+            continue
         best: LocalFault | None = None
-        d_ln, d_le = ln - p_ln, le - p_le
         options = (
-            ("unrecorded_spur", None, 2.0, 1.0 + prep.ratio_e, SPUR_MIN_OHM),
-            ("high_resistance_joint", "line", 1.0, 1.0, JOINT_MIN_OHM),
-            ("high_resistance_joint", "neutral", 1.0, 0.0, JOINT_MIN_OHM),
-            ("high_resistance_joint", "cpc", 0.0, 1.0, JOINT_MIN_OHM),
+            ("unrecorded_spur", None, 2.0, 1.0 + prep.ratio_e, SPUR_RANGE_OHM),
+            ("high_resistance_joint", "line", 1.0, 1.0, JOINT_RANGE_OHM),
+            ("high_resistance_joint", "neutral", 1.0, 0.0, JOINT_RANGE_OHM),
+            ("high_resistance_joint", "cpc", 0.0, 1.0, JOINT_RANGE_OHM),
         )
-        for code, conductor, a_ln, a_le, r_min in options:
+        for code, conductor, a_ln, a_le, (r_lo, r_hi) in options:
             if (a_ln == 0 and np.isnan(le)) or (a_le == 0 and np.isnan(ln)):
                 continue
-            r = _profile_spur(d_ln if a_ln else np.full_like(d_ln, np.nan),
-                              d_le if a_le else np.full_like(d_le, np.nan),
-                              max(a_ln, 1e-12), max(a_le, 1e-12), r_min)
-            alt = reading_loglik(ln, p_ln + a_ln * r) + reading_loglik(le, p_le + a_le * r)
-            lme = float(log_mean_exp(rest + alt))
-            gain = lme - float(asis[i]) - _penalty(1, n, code)
+            r = np.linspace(r_lo, r_hi, R_POINTS)[None, :]  # uniform prior over (r_lo, r_hi)
+            alt = (reading_loglik(ln, p_ln[:, None] + a_ln * r)
+                   + reading_loglik(le, p_le[:, None] + a_le * r))  # (G, R)
+            joint_ll = rest + alt
+            evidence = float(log_mean_exp(joint_ll.ravel()))
+            gain = evidence - float(asis[i]) + np.log(LOCAL_PRIORS[code])
             if gain > 0 and (best is None or gain > best.gain):
-                w = np.exp(rest + alt - np.max(rest + alt))
+                w = np.exp(joint_ll - joint_ll.max())
                 r_est = float(np.sum(w * r) / np.sum(w))
                 best = LocalFault(oid, code, conductor, gain, r_est)
         if best is not None:

@@ -35,6 +35,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+from ringmath.conductors import resistance_mohm_per_m
+
 FORMAT = "ringtest/1"
 OL = math.inf
 
@@ -158,7 +160,10 @@ class RingTest:
 
 def _num(value, path: str, *, minimum: float | None = None, maximum: float | None = None,
          allow_none: bool = True, strict_min: bool = False) -> float | None:
-    """A number from JSON (int, float or a string with '.' or ',' decimal); ValueError naming path."""
+    """A number from JSON (int, float, or text with a decimal point or comma).
+
+    Raises ValueError naming ``path``.
+    """
     if value is None or (isinstance(value, str) and value.strip() == ""):
         if allow_none:
             return None
@@ -269,6 +274,7 @@ def parse_circuit(doc, path: str = "circuit") -> Circuit:
 
 def _csa(value, path: str) -> float:
     number = _num(value, path, minimum=0.0, strict_min=True, maximum=50.0, allow_none=False)
+    resistance_mohm_per_m(number, path)  # raises ValueError naming the field if not tabulated
     return number
 
 
