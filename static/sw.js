@@ -1,7 +1,8 @@
 /* Ringcheck service worker: the app shell and visited pages, for use on site without signal.
  *
  * - install: caches the shell (stylesheet, scripts, manifest, icons, the offline page);
- * - activate: deletes caches of older versions and takes control of open pages;
+ * - activate: deletes caches of older versions and takes control of open pages (which ask
+ *   for their own page to be kept, see "keep-page");
  * - pages (navigations): network first, the copy of the last visit when offline, else the
  *   offline page;
  * - static files under /static/: cache first, fetched and kept when missing;
@@ -45,14 +46,30 @@ self.addEventListener("activate", (event) => {
   })());
 });
 
-/* Messages from the pages: "clear-pages" on logout, so the next user of a shared phone does
- * not see the last one's jobs offline. */
+/* Messages from the pages:
+ * - "keep-page" {url}: the page that was open when this worker took control went past it;
+ *   fetch and keep it so that the first visit opens offline too;
+ * - "clear-pages" on logout, so the next user of a shared phone does not see the last one's
+ *   jobs offline. */
 self.addEventListener("message", (event) => {
   const data = event.data || {};
   if (data.type === "clear-pages") {
     event.waitUntil(caches.delete(PAGE_CACHE));
+  } else if (data.type === "keep-page" && typeof data.url === "string") {
+    const url = new URL(data.url, self.location.origin);
+    if (url.origin !== self.location.origin) return;
+    url.hash = "";
+    event.waitUntil(keepPage(url.href).catch(() => undefined));
   }
 });
+
+async function keepPage(url) {
+  const response = await fetch(url, { credentials: "same-origin" });
+  if (storable(response) && !response.redirected) {
+    const cache = await caches.open(PAGE_CACHE);
+    await cache.put(url, response);
+  }
+}
 
 function storable(response) {
   if (!response || !response.ok || response.type !== "basic") return false;

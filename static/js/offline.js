@@ -402,8 +402,19 @@
   window.addEventListener("online", replay);
   window.addEventListener("offline", showWaiting);
 
+  /* A page loaded before the service worker controlled it did not go through it: once the
+   * worker takes over, ask it to keep this page for offline use. */
+  function keepThisPage() {
+    var sw = navigator.serviceWorker;
+    if (!sw || sw.controller) return;
+    sw.addEventListener("controllerchange", function () {
+      if (sw.controller) sw.controller.postMessage({ type: "keep-page", url: window.location.href });
+    }, { once: true });
+  }
+
   function start() {
     if ("serviceWorker" in navigator && document.body && document.body.dataset.sw) {
+      keepThisPage();
       navigator.serviceWorker.register(document.body.dataset.sw, { scope: "/" })
         .catch(function () { return undefined; });
     }
