@@ -9,7 +9,7 @@ from __future__ import annotations
 import datetime as dt
 
 from flask_login import UserMixin
-from sqlalchemy import ForeignKey, String, Text, UniqueConstraint
+from sqlalchemy import ForeignKey, Index, String, Text, UniqueConstraint
 from sqlalchemy.orm import Mapped, mapped_column, relationship
 
 from fieldapp.extensions import db
@@ -47,7 +47,7 @@ class Job(db.Model):
     notes: Mapped[str] = mapped_column(Text, default="")
     created_by: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
     tester_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
-    status: Mapped[str] = mapped_column(String(16), default="in_progress")
+    status: Mapped[str] = mapped_column(String(16), default="in_progress", index=True)
     submitted_at: Mapped[dt.datetime | None]
     reviewed_by_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
     reviewed_at: Mapped[dt.datetime | None]
@@ -126,6 +126,7 @@ class ChangeLog(db.Model):
     """Append-only history of every write: who, from which device, old value -> new value."""
 
     __tablename__ = "change_log"
+    __table_args__ = (Index("ix_change_log_entity_entity_id", "entity", "entity_id"),)
 
     id: Mapped[int] = mapped_column(primary_key=True)
     at: Mapped[dt.datetime] = mapped_column(default=utcnow)

@@ -7,6 +7,7 @@ from wtforms import SearchField, SelectField, SubmitField, TextAreaField
 from wtforms.validators import DataRequired, Length, Optional
 
 from fieldapp.models import JOB_STATUSES
+from fieldapp.web import options
 
 STATUS_LABELS = {
     "in_progress": "in progress",
@@ -22,8 +23,8 @@ class FilterForm(FlaskForm):
     class Meta:
         csrf = False
 
-    status = SelectField("Status", choices=[("", "any status")] + [
-        (s, STATUS_LABELS[s]) for s in JOB_STATUSES], validators=[Optional()])
+    status = SelectField("Status", choices=options([("", "any status")] + [
+        (s, STATUS_LABELS[s]) for s in JOB_STATUSES]), validators=[Optional()])
     q = SearchField("Site or job reference", validators=[Optional(), Length(max=100)])
     submit = SubmitField("Show")
 
