@@ -7,7 +7,9 @@ spurs, a meter model, shuffled visiting order), it reports:
 * detection rate: a fault-severity finding of a fault code was raised;
 * right-class rate: the true fault (and conductor or step where it has one) is among the top
   findings (an exact tie counts: the readings cannot tell those apart);
-* located rate, where the readings allow it: the finding names the right outlets;
+* located rate, where the readings allow it: the finding names the right outlets; and for
+  every class how often a place is given at all ("placed") and how often a given place is
+  right ("placed right"), so a confident wrong place cannot hide;
 * false alarms: healthy rings not judged satisfactory;
 * the same detection and false-alarm figures for the hand rule (every ring reading within
   0.05 Ω of (r1+rn)/4 or (r1+r2)/4, the ends within 0.05 Ω, no OL);
@@ -91,7 +93,7 @@ def _optimistic(result: dict, truth) -> int:
     return bad
 
 
-def run(cases: int, healthy: int, seed: int) -> None:
+def run(cases: int, healthy: int, seed: int, show: str | None = None) -> None:
     rng = np.random.default_rng(seed)
     rows = []
     optimistic = points = 0
@@ -104,10 +106,16 @@ def run(cases: int, healthy: int, seed: int) -> None:
         top = [f for f in faults if f["confidence"] is not None
                and faults[0]["confidence"] - f["confidence"] < 0.05] or faults[:1]
         match = next((f for f in faults if _matches(f, truth)), None) if code else None
+        if show and code == show and not any(_matches(f, truth) for f in top):
+            e = record["end_to_end"]
+            print(f"missed {code} {truth.conductor or truth.step or ''} at {truth.outlets}: "
+                  f"r1 {e['r1']} rn {e['rn']} r2 {e['r2']} -> "
+                  f"{[(f['code'], f['conductor'], f['confidence']) for f in faults[:3]]}")
         rows.append({
             "code": code, "detected": bool(faults), "flagged": result["verdict"] != "satisfactory",
             "right": bool(code) and any(_matches(f, truth) for f in top),
             "locatable": truth.locatable, "located": bool(match) and _located(match, truth),
+            "placed": bool(match) and bool(match["outlets"]),
             "hand": hand_rule(record),
         })
 
@@ -115,14 +123,18 @@ def run(cases: int, healthy: int, seed: int) -> None:
         return f"{100 * num / den:5.1f} %" if den else "   n/a"
 
     print(f"seed {seed}: {healthy} healthy rings, {cases} per fault class\n")
-    print(f"{'class':24} {'n':>4} {'detected':>9} {'right':>8} {'located':>9} {'hand rule':>10}")
+    print(f"{'class':24} {'n':>4} {'detected':>9} {'right':>8} {'located':>9} {'hand rule':>10}"
+          f" {'placed':>8} {'placed right':>13}")
     for code in FAULT_CODES:
         r = [x for x in rows if x["code"] == code]
         loc = [x for x in r if x["locatable"]]
+        placed = [x for x in r if x["placed"]]
         print(f"{code:24} {len(r):4} {pct(sum(x['detected'] for x in r), len(r)):>9} "
               f"{pct(sum(x['right'] for x in r), len(r)):>8} "
               f"{pct(sum(x['located'] for x in loc), len(loc)):>9} "
-              f"{pct(sum(x['hand'] for x in r), len(r)):>10}")
+              f"{pct(sum(x['hand'] for x in r), len(r)):>10} "
+              f"{pct(sum(x['placed'] for x in r), len(r)):>8} "
+              f"{pct(sum(x['located'] for x in placed), len(placed)):>13}")
     faulty = [x for x in rows if x["code"]]
     loc = [x for x in faulty if x["locatable"]]
     well = [x for x in rows if x["code"] is None]
@@ -152,8 +164,9 @@ def main() -> None:
     parser.add_argument("--cases", type=int, default=30)
     parser.add_argument("--healthy", type=int, default=90)
     parser.add_argument("--seed", type=int, default=2026)
+    parser.add_argument("--show", metavar="CODE", help="print the cases of CODE not classed right")
     args = parser.parse_args()
-    run(args.cases, args.healthy, args.seed)
+    run(args.cases, args.healthy, args.seed, args.show)
 
 
 if __name__ == "__main__":

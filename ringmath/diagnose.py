@@ -20,8 +20,11 @@ from ringmath.likelihood import Prepared, prepare, t_grid
 from ringmath.local import LocalFault, local_faults
 from ringmath.record import RingTest, format_reading, parse_record
 
-#: A fault position whose profile spread (ring fractions) exceeds this is "not located".
-LOCATE_SD = 0.12
+#: A fault position whose spread (ring fractions, over the uniform search grid) exceeds this
+#: is "not located". A flat profile over half the ring gives 0.144. Calibrated on simulated
+#: rings (bench/diagnosis.py): bridges and breaks are placed right well past 0.1, while a
+#: joint's place is rarely right above 0.06 (step 2 shifts evenly and step 3 only shows a gap).
+LOCATE_SD = {"interconnection": 0.12, "open_conductor": 0.11, "high_resistance_joint": 0.06}
 #: A position whose posterior spread exceeds this is reported as unknown (None).
 POSITION_SD = 0.18
 #: Two combined explanations closer than this in score (nats) "fit about equally".
@@ -66,7 +69,7 @@ def _named(ids, names: dict) -> list[str]:
 def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post, mean,
                  names: dict) -> Finding:
     """The whole-ring fault of ``fit`` as a Finding, located where the readings allow."""
-    located = fit.theta_sd is not None and fit.theta_sd <= LOCATE_SD
+    located = fit.theta_sd is not None and fit.theta_sd <= LOCATE_SD.get(fit.code, 0.0)
     if fit.code == "interconnection":
         a, b = fit.theta["a"], fit.theta["b"]
         t = t_grid(post.shape[1])

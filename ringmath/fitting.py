@@ -67,10 +67,12 @@ class Fit:
     pred_ln: np.ndarray | None = None
     pred_le: np.ndarray | None = None
     theta_sd: float | None = None
+    log_occam: float = 0.0
 
     def score(self, n_readings: int) -> float:
-        """BIC-style score: loglik - k/2 ln(n) + ln(prior)."""
-        return (self.loglik - 0.5 * self.k * np.log(max(n_readings, 2))
+        """BIC-style score: loglik + log_occam - k/2 ln(n) + ln(prior). ``log_occam`` (<= 0)
+        is the fault position integrated over a uniform prior instead of counted in k."""
+        return (self.loglik + self.log_occam - 0.5 * self.k * np.log(max(n_readings, 2))
                 + np.log(PRIORS[self.code]))
 
 
@@ -218,15 +220,18 @@ def _fit_series(prep: Prepared, code: str, conductor: str, ring: np.ndarray,
     best = float(theta[int(np.argmax(lls)), 0])
     llb, ln, le = _series_eval(prep, conductor, ring, np.array([best]), series_s, G_FINE)
     sd = _position_sd(xs, ll)
+    # the break or joint position is a nuisance: average it over its uniform grid (Occam)
+    occam = min(float(log_mean_exp(ll) - np.max(lls)), 0.0)
     return Fit(code, conductor, None, float(llb[0]) + cons, k, {"x": best, **extra},
-               tuple(ring), ln[0], le[0], sd)
+               tuple(ring), ln[0], le[0], sd, occam)
 
 
 def fit_open(prep: Prepared, conductor: str) -> Fit | None:
     """A break in one ring conductor at an unknown position x (its end-to-end reading is OL).
 
     The broken conductor's cable resistance is taken from the others by the conductor table
-    (line = neutral; cpc = line x ratio). 1 parameter. None when not applicable.
+    (line = neutral; cpc = line x ratio). The position is integrated, not counted. None when not
+    applicable.
     """
     c = CONDUCTOR_INDEX[conductor]
     e2e = prep.e2e_ohm
@@ -240,14 +245,14 @@ def fit_open(prep: Prepared, conductor: str) -> Fit | None:
     ring[c] = float(np.mean([e2e[i] / ratio[i] for i in others])) * ratio[c]
     cons = e2e_consistency(np.where(np.isinf(e2e), np.nan, e2e), prep)
     cons += float(reading_loglik(np.array(np.inf), np.array(np.inf)))
-    return _fit_series(prep, "open_conductor", conductor, ring, 0.0, cons, 1, {})
+    return _fit_series(prep, "open_conductor", conductor, ring, 0.0, cons, 0, {})
 
 
 def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
     """A high-resistance joint J ohms in series in one ring conductor at position x.
 
-    J is the conductor's end-to-end excess over what the other two conductors imply.
-    2 parameters (x, J). None when the excess is below JOINT_MIN_OHM.
+    J is the conductor's end-to-end excess over what the other two conductors imply: one
+    fitted parameter; the position is integrated. None when the excess is below JOINT_MIN_OHM.
     """
     c = CONDUCTOR_INDEX[conductor]
     e2e = prep.e2e_ohm
@@ -262,7 +267,7 @@ def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
     ring = e2e.copy()
     ring[c] = expected
     cons = e2e_consistency(ring, prep)
-    return _fit_series(prep, "high_resistance_joint", conductor, ring, 1.0 / joint, cons, 2,
+    return _fit_series(prep, "high_resistance_joint", conductor, ring, 1.0 / joint, cons, 1,
                        {"r_ohm": joint})
 
 

@@ -30,6 +30,10 @@ P_OL_FALSE = 1e-4
 P_OUTLIER = 2e-3
 OUTLIER_RANGE_OHM = 5.0
 LOG_OUTLIER = np.log(P_OUTLIER / OUTLIER_RANGE_OHM)
+#: Relative spread of r2/r1 about the tabulated ratio on a sound ring of one cable type
+#: (copper and sizes alike in every core; our working figure, common practice expects
+#: r2 ≈ 1.67 x r1 for 2.5/1.5 closely).
+CPC_RATIO_TOL = 0.025
 #: The cpc that usually comes with a flat twin-and-earth cable of a given live csa, mm²
 #: (common practice: 1.0/1.0, 1.5/1.0, 2.5/1.5, 4/1.5, 6/2.5, 10/4).
 TWIN_AND_EARTH_CPC_MM2 = {1.0: 1.0, 1.5: 1.0, 2.5: 1.5, 4.0: 1.5, 6.0: 2.5, 10.0: 4.0}
@@ -199,17 +203,18 @@ def marginal_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray) ->
 def e2e_consistency(r_ohm: np.ndarray, prep: Prepared) -> float:
     """Log-likelihood that ring cable resistances ``r_ohm`` (line, neutral, cpc; nan unknown)
     belong to one healthy cable: rn = r1 x ratio_n and r2 = r1 x ratio_e within cable tolerance
-    (1 % live/neutral, 4 % cpc ratio; our own working figures) and meter noise."""
+    (1 % live/neutral, CPC_RATIO_TOL for the cpc ratio; our own working figures) and meter
+    noise."""
     total = 0.0
     r1, rn, r2 = (float(v) for v in r_ohm)
-    pairs = ((r1, rn, prep.ratio_n, 0.01), (r1, r2, prep.ratio_e, 0.04))
+    pairs = ((r1, rn, prep.ratio_n, 0.01), (r1, r2, prep.ratio_e, CPC_RATIO_TOL))
     for a, b, ratio, tol in pairs:
         if np.isfinite(a) and np.isfinite(b):
             sig = np.hypot(meter.SIGMA_FLOOR_OHM * np.sqrt(2), tol * b)
             z = (b - a * ratio) / sig
             total += -0.5 * z * z - np.log(sig * np.sqrt(2 * np.pi))
     if np.isfinite(rn) and np.isfinite(r2) and not np.isfinite(r1):
-        sig = np.hypot(meter.SIGMA_FLOOR_OHM * np.sqrt(2), 0.04 * r2)
+        sig = np.hypot(meter.SIGMA_FLOOR_OHM * np.sqrt(2), CPC_RATIO_TOL * r2)
         z = (r2 - rn * prep.ratio_e / prep.ratio_n) / sig
         total += -0.5 * z * z - np.log(sig * np.sqrt(2 * np.pi))
     return total

@@ -144,7 +144,9 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
         k = int(rng.integers(0, n_ring))
         spec["joint"] = (_BY_NAME[conductor], order[k].id, float(rng.uniform(0.1, 0.4)))
         truth_outlets = (order[k].id,)
-        locatable = conductor != "neutral"
+        # Step 2 rises evenly wherever the joint is, and step 3 only shows a gap in the spread
+        # of readings: these readings do not place a joint in general.
+        locatable = False
     elif fault == "wrong_cross_connection":
         step = choices.get("step") or str(rng.choice(["ln", "le"]))
         spec["wrong"] = step
