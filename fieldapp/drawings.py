@@ -319,26 +319,60 @@ def _finite(value) -> float | None:
     return float(value) if math.isfinite(value) else None
 
 
+def _agrees_with_order(known: list[float | None]) -> bool:
+    """Known positions rise along the ring order (equal ones only side by side)."""
+    last_i, last_v = None, None
+    for i, v in enumerate(known):
+        if v is None:
+            continue
+        if last_v is not None and (v < last_v or (v == last_v and i != last_i + 1)):
+            return False
+        last_i, last_v = i, v
+    return True
+
+
+def _centre_ties(known: list[float | None], gap: float) -> list[float | None]:
+    """Side-by-side points at the same position spread symmetrically about it."""
+    out = list(known)
+    i = 0
+    while i < len(known):
+        if known[i] is None:
+            i += 1
+            continue
+        j = i
+        while j + 1 < len(known) and known[j + 1] == known[i]:
+            j += 1
+        for m in range(i, j + 1):
+            out[m] = known[i] + (m - (i + j) / 2) * gap
+        i = j + 1
+    return out
+
+
 def ring_positions(diagnosis: dict) -> dict[str, float]:
     """Where each ring point is drawn, as a fraction 0..1 of the way round from end 1.
 
-    A point's own ``position`` is used where given; points without one are spread evenly
-    between their known neighbours in ring order (or over the whole ring when none is known).
-    Points are then kept in order and at least a small step apart, so no two share a spot.
+    Points' own ``position`` values are used when they agree with ``ring_order`` (rising along
+    it); points without one are spread evenly between their known neighbours, and points sharing
+    one position spread about it. When the positions contradict the order, or none is known,
+    the points are spread evenly in ring order. Points always stay in order and a small step
+    apart, so no two share a spot.
     """
     ring, _ = _points_in_order(diagnosis)
     n = len(ring)
     if not n:
         return {}
+    margin = 0.03
+    gap = min(0.05, (1 - 2 * margin) / max(n - 1, 1))
     known = [_finite(p.get("position")) for p in ring]
     known = [None if v is None else min(max(v, 0.0), 1.0) for v in known]
+    if not _agrees_with_order(known):
+        known = [None] * n
+    known = _centre_ties(known, gap)
     anchors = [(-1, 0.0)] + [(i, v) for i, v in enumerate(known) if v is not None] + [(n, 1.0)]
     spread = list(known)
     for (i0, v0), (i1, v1) in zip(anchors, anchors[1:], strict=False):
         for k in range(i0 + 1, i1):
             spread[k] = v0 + (v1 - v0) * (k - i0) / (i1 - i0)
-    margin = 0.03
-    gap = min(0.05, (1 - 2 * margin) / max(n - 1, 1))
     placed = [min(max(v, margin), 1 - margin) for v in spread]
     for k in range(1, n):
         placed[k] = max(placed[k], placed[k - 1] + gap)
@@ -407,19 +441,33 @@ def _short(text: str, chars: int) -> str:
     return text if len(text) <= chars else text[: chars - 1].rstrip() + "…"
 
 
-def _outer_label(position: float, label: str) -> str:
-    """A short label just outside the ring, anchored away from the centre."""
-    x, y = _on_ring(position, _R + _NODE + 7)
-    side = math.sin(_angle(position))
-    anchor = "end" if side > 0.35 else "start" if side < -0.35 else "middle"
-    if anchor == "middle":
-        y += 4 if y > _CY else -2
-        room = 2 * min(x, WIDTH - x)
-    else:
-        y += 4
-        room = x if anchor == "end" else WIDTH - x
-    chars = max(int((room - 4) / 6.6), 4)
-    return _text(x, y, _short(label, min(chars, 16)), size=11, anchor=anchor, title=label)
+def _outer_labels(positions: list[tuple[float, str]]) -> tuple[list[str], float]:
+    """Short labels just outside the ring, anchored away from the centre. A label that would
+    overlap one placed before it moves outward a line at a time. Returns the elements and the
+    lowest y any label reaches."""
+    out, boxes, lowest = [], [], _CY + _R
+    for position, label in positions:
+        side = math.sin(_angle(position))
+        anchor = "end" if side > 0.35 else "start" if side < -0.35 else "middle"
+        for step in range(4):
+            x, y = _on_ring(position, _R + _NODE + 7 + 13 * step)
+            if anchor == "middle":
+                y += 4 if y > _CY else -2
+                room = min(2 * min(x, WIDTH - x), 90)
+            else:
+                y += 4
+                room = x if anchor == "end" else WIDTH - x
+            text = _short(label, min(max(int((room - 4) / 6.6), 4), 16))
+            width = len(text) * 6.6
+            left = {"end": x - width, "start": x, "middle": x - width / 2}[anchor]
+            box = (left - 2, y - 11, left + width + 2, y + 3)
+            if not any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3]
+                       for b in boxes):
+                break
+        boxes.append(box)
+        lowest = max(lowest, box[3])
+        out.append(_text(x, y, text, size=11, anchor=anchor, title=label))
+    return out, lowest
 
 
 def _spur_layout(spurs: list[dict], anchors: dict[str, tuple]) -> list[tuple]:
@@ -490,8 +538,9 @@ def _key(points: list[dict], numbers: dict[str, int], suspects: set[str], y: flo
     return out, y
 
 
-def _fault_marks(fault: dict, ring_xy) -> list[str]:
-    """The chord of a bridged section or the mark at a break or joint."""
+def _fault_marks(fault: dict, ring_xy) -> tuple[list[str], list[str]]:
+    """The chord of a bridged section (drawn under the points) or the cross at a break or
+    joint (drawn over them, so a point on the spot cannot hide it)."""
     out = []
     word = FAULT_WORDS.get(fault.get("code"), "fault?")
     conductor = fault.get("conductor")
@@ -510,7 +559,7 @@ def _fault_marks(fault: dict, ring_xy) -> list[str]:
                        stroke="none"))
         out.append(_text(mx, my + 3, word, size=11, anchor="middle", weight="bold",
                          fill=ALERT))
-        return out
+        return out, []
     position = _finite(fault.get("position"))
     if position is not None:
         position = min(max(position, 0.0), 1.0)
@@ -522,7 +571,7 @@ def _fault_marks(fault: dict, ring_xy) -> list[str]:
         ix, iy = _on_ring(position, _R - 28)
         out.append(_text(ix, iy + 4, word, size=11, anchor="middle", weight="bold",
                          fill=ALERT))
-    return out
+    return [], out
 
 
 def ring_picture(diagnosis: dict) -> Markup:
@@ -537,6 +586,7 @@ def ring_picture(diagnosis: dict) -> Markup:
     positions = ring_positions(diagnosis)
     fault = _first_fault(diagnosis)
     suspects = {str(o) for o in (fault.get("outlets") or [])} if fault else set()
+    under, over = _fault_marks(fault, _on_ring) if fault else ([], [])
 
     (e1x, e1y), (e2x, e2y) = _on_ring(0.0), _on_ring(1.0)
     body = [
@@ -554,9 +604,7 @@ def ring_picture(diagnosis: dict) -> Markup:
     if not ring:
         body.append(_text(_CX, _CY + 4, "No outlets recorded yet", size=12, anchor="middle",
                           fill=MUTED))
-    if fault:
-        body += _fault_marks(fault, _on_ring)
-
+    body += under
     anchors = {}
     for point in ring:
         oid = str(point.get("id"))
@@ -574,10 +622,10 @@ def ring_picture(diagnosis: dict) -> Markup:
             body.append(_halo(x, y))
         if point.get("ok") is False:
             body.append(_zs_badge(x, y))
-    for point in ring:
-        body.append(_outer_label(positions[str(point.get("id"))], _label(point)))
+    labels, lowest = _outer_labels([(positions[str(p.get("id"))], _label(p)) for p in ring])
+    body += labels + over
 
-    y = _CY + _R + 40
+    y = max(_CY + _R + 40, lowest + 24)
     if fault:
         lines, y = _wrapped(12, y, "Suspected: " + str(fault.get("message") or fault.get(
             "code", "")), 50, weight="bold", fill=ALERT)

@@ -7,13 +7,16 @@ so the checks hold whatever sizes the drawings use.
 
 from __future__ import annotations
 
+import json
 import math
 import re
 import xml.etree.ElementTree as ET
+from pathlib import Path
 
 import pytest
 
 from fieldapp import drawings
+from ringmath.diagnose import diagnose
 
 SVG = "{http://www.w3.org/2000/svg}"
 HOSTILE = '<script>alert("x")</script> & \'quoted\''
@@ -350,6 +353,23 @@ def test_coinciding_positions_still_get_distinct_places_on_the_ring(where):
     assert turn(geometry, x1, y1) < angles[0] and angles[-1] < turn(geometry, x2, y2)
 
 
+def test_positions_that_contradict_the_ring_order_are_not_used():
+    diag = diagnosis([point("a", "A", 0.8), point("b", "B", 0.2), point("c", "C"),
+                      point("d", "D")])
+    angles = angles_in_order(diag)
+    gaps = [b - a for a, b in zip(angles, angles[1:], strict=False)]
+    assert min(gaps) > 0 and max(gaps) == pytest.approx(min(gaps), rel=1e-3)
+
+
+def test_points_sharing_a_position_spread_about_it():
+    diag = diagnosis([point("a", "A"), point("b", "B", 0.5), point("c", "C", 0.5),
+                      point("d", "D", 0.5), point("e", "E")])
+    a, b, c, d, e = angles_in_order(diag)
+    assert c == pytest.approx(math.pi, abs=1e-3)  # half way round: straight below the centre
+    assert c - b == pytest.approx(d - c, rel=1e-3) and c - b > 0.1
+    assert b - a == pytest.approx(e - d, rel=1e-3)
+
+
 def test_bridge_is_a_chord_between_the_section_ends():
     diag = bridged()
     root = parse(drawings.ring_picture(diag))
@@ -553,3 +573,42 @@ def test_reading_far_above_the_scale_is_pinned_with_its_value():
     diag["points"][2]["ln_ohm"] = 7.5
     words = texts(parse(drawings.readings_plot(diag)))
     assert "high 7.50" in words
+
+
+# ---------------------------------------------------------------- on real diagnoses
+
+
+DEMO_JOBS = sorted((Path(__file__).resolve().parents[2] / "demo_jobs").glob("*.json"))
+
+
+def demo_records():
+    for path in DEMO_JOBS:
+        doc = json.loads(path.read_text(encoding="utf-8"))
+        for i, record in enumerate(doc.get("circuits") or [doc]):
+            yield pytest.param(record, id=f"{path.stem}-{i}")
+
+
+@pytest.mark.parametrize("record", demo_records())
+def test_drawings_of_ringmath_diagnoses(record):
+    diag = diagnose(record)
+    ring = parse(drawings.ring_picture(diag))
+    plot = parse(drawings.readings_plot(diag))
+    for p in diag["points"]:
+        assert p["label"] in texts(ring) and p["label"] in texts(plot)
+    angles = angles_in_order(diag)
+    assert all(b - a > 0.05 for a, b in zip(angles, angles[1:], strict=False))
+    first = next((f for f in diag["findings"] if f["severity"] == "fault"), None)
+    chords = [ln for ln in alert_lines(ring) if ln.get("stroke-dasharray")]
+    assert len(chords) == (1 if first and first["section"] else 0)
+    halos = [c for c in ring.iter(f"{SVG}circle")
+             if c.get("stroke") == drawings.ALERT and c.get("fill") == "none"]
+    # each suspect outlet ringed twice: on the drawing and in the key
+    assert len(halos) == 2 * len(first["outlets"] if first else [])
+    opens = sum(p[f] == "OL" for p in diag["points"] for f in ("ln_ohm", "le_ohm"))
+    assert texts(plot).count("OL") == opens
+
+
+def test_demo_jobs_cover_the_fault_marks():
+    codes = {f["code"] for record in demo_records() for f in diagnose(record.values[0])[
+        "findings"] if f["severity"] == "fault"}
+    assert {"interconnection", "open_conductor"} <= codes
