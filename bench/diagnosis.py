@@ -111,6 +111,9 @@ def run(cases: int, healthy: int, seed: int, show: str | None = None) -> None:
             print(f"missed {code} {truth.conductor or truth.step or ''} at {truth.outlets}: "
                   f"r1 {e['r1']} rn {e['rn']} r2 {e['r2']} -> "
                   f"{[(f['code'], f['conductor'], f['confidence']) for f in faults[:3]]}")
+        if show and code == show and match and truth.locatable and not _located(match, truth):
+            print(f"misplaced {code}: true {sorted(truth.outlets)} given {sorted(match['outlets'])}"
+                  f" section {match['section']} order {list(truth.ring_order)}")
         rows.append({
             "code": code, "detected": bool(faults), "flagged": result["verdict"] != "satisfactory",
             "right": bool(code) and any(_matches(f, truth) for f in top),
