@@ -21,7 +21,7 @@ from fieldapp.extensions import csrf, db, login_manager
 ROOT = Path(__file__).resolve().parent.parent
 #: Blueprints built in this package; optional ones are registered when their module exists.
 BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api")
-OPTIONAL_BLUEPRINTS = ("fieldapp.review", "fieldapp.export")
+OPTIONAL_BLUEPRINTS = ("fieldapp.review", "fieldapp.sheets", "fieldapp.transfer")
 
 
 def create_app(config: dict | None = None) -> Flask:

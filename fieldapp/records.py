@@ -79,7 +79,7 @@ def job_document(job: Job) -> dict:
 def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
     """(diagnosis, None) from ringmath.diagnose, or (None, reason) when it cannot run."""
     try:
-        from ringmath import diagnose  # noqa: PLC0415  (ringmath grows alongside the app)
+        from ringmath.diagnose import diagnose  # noqa: PLC0415  (grows alongside the app)
     except ImportError:
         return None, "The diagnosis module is not installed yet."
     try:

@@ -35,10 +35,6 @@ CPC_CSA = (("1", "1.0 mm²"), ("1.5", "1.5 mm²"), ("2.5", "2.5 mm²"), ("4", "4
 DECIMAL = {"inputmode": "decimal", "autocomplete": "off"}
 
 
-def _none_if_blank(value):
-    return None if value in ("", None) else value
-
-
 class JobForm(FlaskForm):
     reference = StringField("Job reference", validators=[DataRequired(), Length(max=40)])
     site = StringField("Site address", validators=[DataRequired(), Length(max=200)])
@@ -57,14 +53,11 @@ class CircuitForm(FlaskForm):
                               description="e.g. Ground floor sockets")
     ocpd_standard = SelectField("Protective device", choices=options(OCPD_STANDARDS),
                                 default="BS EN 60898")
-    ocpd_curve = SelectField("Curve", choices=options(CURVES), default="B",
-                             filters=[_none_if_blank])
+    ocpd_curve = SelectField("Curve", choices=options(CURVES), default="B")
     ocpd_rating_a = SelectField("Rating", coerce=float, default=32.0,
                                 choices=options((float(r), f"{r} A") for r in RATINGS_A))
-    rcd_rated_ma = SelectField("RCD", choices=options(RCD_MA), default="30",
-                               filters=[_none_if_blank])
-    rcd_type = SelectField("RCD type", choices=options(RCD_TYPES), default="A",
-                           filters=[_none_if_blank])
+    rcd_rated_ma = SelectField("RCD", choices=options(RCD_MA), default="30")
+    rcd_type = SelectField("RCD type", choices=options(RCD_TYPES), default="A")
     live_csa_mm2 = SelectField("Line and neutral size", choices=options(LIVE_CSA), default="2.5")
     cpc_csa_mm2 = SelectField("CPC (earth) size", choices=options(CPC_CSA), default="1.5")
     ze_ohm = FloatField("Ze (Ω)", validators=[Optional(), NumberRange(min=0, max=200)],
@@ -98,10 +91,10 @@ class CircuitForm(FlaskForm):
         return {
             "board": self.board.data.strip(), "way": self.way.data.strip(),
             "description": (self.description.data or "").strip(),
-            "ocpd_standard": self.ocpd_standard.data, "ocpd_curve": self.ocpd_curve.data,
+            "ocpd_standard": self.ocpd_standard.data, "ocpd_curve": self.ocpd_curve.data or None,
             "ocpd_rating_a": float(self.ocpd_rating_a.data),
             "rcd_rated_ma": float(self.rcd_rated_ma.data) if self.rcd_rated_ma.data else None,
-            "rcd_type": self.rcd_type.data if self.rcd_rated_ma.data else None,
+            "rcd_type": (self.rcd_type.data or None) if self.rcd_rated_ma.data else None,
             "live_csa_mm2": float(self.live_csa_mm2.data),
             "cpc_csa_mm2": float(self.cpc_csa_mm2.data),
             "ze_ohm": self.ze_ohm.data, "ze_source": self.ze_source.data,

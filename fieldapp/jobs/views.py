@@ -48,6 +48,11 @@ def _reference_taken(form: JobForm, job: Job | None) -> bool:
     return False
 
 
+def _status() -> int:
+    """422 for a form that came back with errors, 200 for a fresh one."""
+    return 422 if request.method == "POST" else 200
+
+
 def _refuse_locked(job: Job):
     """A redirect to the job page when the job can no longer change, else None."""
     try:
@@ -88,7 +93,7 @@ def new():
         db.session.commit()
         flash(f"Job {job.reference} created. Add its first circuit.", "ok")
         return redirect(url_for("jobs.new_circuit", job_id=job.id))
-    return render_template("jobs/job_form.html", form=form, job=None)
+    return render_template("jobs/job_form.html", form=form, job=None), _status()
 
 
 @bp.get("/<int:job_id>")
@@ -116,7 +121,7 @@ def edit(job_id: int):
         db.session.commit()
         flash("Job saved." if changed else "Nothing changed.", "ok")
         return redirect(url_for("jobs.detail", job_id=job.id))
-    return render_template("jobs/job_form.html", form=form, job=job)
+    return render_template("jobs/job_form.html", form=form, job=job), _status()
 
 
 @bp.post("/<int:job_id>/submit")
@@ -156,7 +161,8 @@ def new_circuit(job_id: int):
         db.session.commit()
         flash("Circuit saved. Start with the safety checks.", "ok")
         return redirect(url_for("ringtest.resume", circuit_id=circuit.id))
-    return render_template("jobs/circuit_form.html", form=form, job=job, circuit=None)
+    return render_template("jobs/circuit_form.html", form=form, job=job,
+                           circuit=None), _status()
 
 
 @bp.route("/circuits/<int:circuit_id>/edit", methods=["GET", "POST"])
@@ -173,4 +179,4 @@ def edit_circuit(circuit_id: int):
         flash("Circuit saved." if changed else "Nothing changed.", "ok")
         return redirect(url_for("jobs.detail", job_id=circuit.job_id))
     return render_template("jobs/circuit_form.html", form=form, job=circuit.job,
-                           circuit=circuit)
+                           circuit=circuit), _status()

@@ -6,7 +6,7 @@ import uuid
 
 from flask_wtf import FlaskForm
 from wtforms import BooleanField, HiddenField, SelectField, StringField, SubmitField
-from wtforms.validators import DataRequired, Length, Optional
+from wtforms.validators import DataRequired, Length
 
 from fieldapp.web import options
 from ringmath.record import FCU_FUSE_RATINGS_A, OUTLET_KINDS
@@ -25,10 +25,6 @@ SPUR_CSA = (("", "same as the ring"), ("1", "1.0 mm²"), ("1.5", "1.5 mm²"), ("
 def new_client_id() -> str:
     """A fresh idempotency key for one write from this page."""
     return str(uuid.uuid4())
-
-
-def _blank_to_none(value):
-    return None if value in ("", None) else value
 
 
 def _float_or_none(value):
@@ -71,15 +67,13 @@ class OutletForm(FlaskForm):
                         render_kw={"autocomplete": "off"})
     kind = SelectField("What is it?", choices=options((k, KIND_LABELS[k]) for k in OUTLET_KINDS),
                        default="twin_socket")
-    spur_from_key = SelectField("Fed from", filters=[_blank_to_none],
+    spur_from_key = SelectField("Fed from",
                                 description="On the ring, or a spur from another point")
-    fuse_a = SelectField("FCU fuse", filters=[_float_or_none],
+    fuse_a = SelectField("FCU fuse",
                          choices=options([("", "— (not an FCU)")]
                                          + [(f"{r}", f"{r} A") for r in FCU_FUSE_RATINGS_A]))
-    spur_csa_mm2 = SelectField("Spur cable line size", choices=options(SPUR_CSA),
-                               filters=[_float_or_none], validators=[Optional()])
-    spur_cpc_csa_mm2 = SelectField("Spur cable CPC size", choices=options(SPUR_CSA),
-                                   filters=[_float_or_none], validators=[Optional()])
+    spur_csa_mm2 = SelectField("Spur cable line size", choices=options(SPUR_CSA))
+    spur_cpc_csa_mm2 = SelectField("Spur cable CPC size", choices=options(SPUR_CSA))
     client_id = HiddenField(default=new_client_id)
     device = HiddenField()
     submit = SubmitField("Add outlet")
@@ -89,12 +83,12 @@ class OutletForm(FlaskForm):
             (o.key, f"Spur from {o.key}: {o.label}") for o in outlets if o.key != exclude])
 
     def values(self) -> dict:
-        spur = self.spur_from_key.data
+        spur = self.spur_from_key.data or None
         return {
             "label": self.label.data.strip(), "kind": self.kind.data, "spur_from_key": spur,
-            "fuse_a": self.fuse_a.data,
-            "spur_csa_mm2": self.spur_csa_mm2.data if spur else None,
-            "spur_cpc_csa_mm2": self.spur_cpc_csa_mm2.data if spur else None,
+            "fuse_a": _float_or_none(self.fuse_a.data),
+            "spur_csa_mm2": _float_or_none(self.spur_csa_mm2.data) if spur else None,
+            "spur_cpc_csa_mm2": _float_or_none(self.spur_cpc_csa_mm2.data) if spur else None,
         }
 
 

@@ -22,6 +22,7 @@ def login(test_password):
         response = client.post("/login", data={"username": username,
                                                "password": password or test_password})
         assert response.status_code == 302, response.get_data(as_text=True)[:500]
+        client.get(response.headers["Location"])  # shows (and so clears) the welcome flash
         return response
 
     return do
@@ -80,10 +81,10 @@ def make_circuit(app):
                                        "tester_id": user.id, "status": status}, who)
             values = {"job_id": job.id, "board": "DB1", "way": "4", "ocpd_curve": "B",
                       "ze_ohm": 0.35, "earthing": "TN-C-S"}
-            values.update(fields)
             if safe:
                 values.update({"safety_isolated": True, "safety_locked_off": True,
                                "safety_proved_dead": True, "current_step": "e2e"})
+            values.update(fields)
             circuit = changes.create(Circuit, values, who)
             for name, value in (e2e or {}).items():
                 changes.set_reading(circuit, name, value, who)
