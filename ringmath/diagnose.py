@@ -169,10 +169,12 @@ def _verdict(test: RingTest, findings: list[Finding]) -> str:
     return "satisfactory" if complete else "incomplete"
 
 
-def _summary(verdict: str, findings: list[Finding]) -> str:
+def _summary(verdict: str, findings: list[Finding], names: dict) -> str:
     faults = [f for f in findings if f.severity == "fault"]
     if faults:
-        return faults[0].message.split(". ")[0].rstrip(".") + "."
+        top = faults[0]
+        shown = [names.get(o, o) for o in top.outlets] if len(top.outlets) <= 2 else []
+        return messages.headline(top.code, top.conductor, top.step, shown)
     if verdict == "investigate":
         return "No fault pattern in the readings, but some checks need attention."
     if verdict == "incomplete":
@@ -209,7 +211,7 @@ def diagnose(record) -> dict:
     verdict = _verdict(test, findings)
     return {
         "verdict": verdict,
-        "summary": _summary(verdict, findings),
+        "summary": _summary(verdict, findings, {o.id: o.label or o.id for o in test.outlets}),
         "findings": [f.as_dict() for f in findings],
         "circuit": circuit,
         "points": points,

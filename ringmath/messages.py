@@ -135,6 +135,29 @@ def ol_pattern(outlet: str, code: str, conductor: str | None, swap: str | None) 
     return msg, checks[swap or conductor]
 
 
+def headline(code: str, conductor: str | None = None, step: str | None = None,
+             outlets=()) -> str:
+    """A few words for the top of a result: the answer at a glance."""
+    where = f" at {_list(list(outlets))}" if outlets else ""
+    if code == "interconnection":
+        return "The ring looks bridged (interconnected)."
+    if code == "open_conductor":
+        if outlets and len(outlets) == 1:
+            return f"The {_NAMES[conductor]} looks not connected{where}."
+        return f"The {_NAMES[conductor]} of the ring is broken."
+    if code == "high_resistance_joint":
+        return f"A poor {_NAMES[conductor]} joint{where or ' in the ring'}."
+    if code == "wrong_cross_connection":
+        return f"The ends look wrongly joined for {_STEP_NAMES[step]}."
+    if code == "unrecorded_spur":
+        return f"An unrecorded spur{where}."
+    if code == "reversed_polarity":
+        return f"Terminals look swapped{where}."
+    if code == "zs_over_limit":
+        return f"Zs is over the limit{where}."
+    return "A fault needs checking."
+
+
 def look_alike(first: str, second: str) -> str:
     """A sentence for two explanations that fit about equally, with what tells them apart."""
     pair = {first, second}
