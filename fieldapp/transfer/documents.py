@@ -77,9 +77,26 @@ def _restore_safety(circuit: Circuit, block: dict, actor: changes.Actor) -> list
     return notes
 
 
+def _feed_order_errors(doc) -> list[str]:
+    """Spurs listed before the outlet that feeds them: the app keeps outlets in visiting
+    order and adds each spur under an outlet it already has."""
+    errors = []
+    for i, rec in enumerate(doc["circuits"]):
+        earlier = set()
+        for j, outlet in enumerate(rec["outlets"]):
+            feed = outlet["spur_from"]
+            if feed and feed not in earlier:
+                errors.append(f"circuits[{i}].outlets[{j}].spur_from: {feed!r} comes later in "
+                              "the list; list the outlet that feeds a spur before the spur")
+            earlier.add(outlet["id"])
+    return errors
+
+
 def import_errors(doc) -> list[str]:
     """Every reason the document cannot be imported (empty when it can)."""
     errors = document_errors(doc)
+    if not errors:
+        errors = _feed_order_errors(doc)
     job = doc.get("job") if isinstance(doc, dict) else None
     reference = job.get("reference") if isinstance(job, dict) else None
     if isinstance(reference, str) and reference.strip() and db.session.scalar(
