@@ -297,3 +297,46 @@ def test_the_layout_checks_catch_what_they_look_for(page):
     assert scroll > client == 360
     found = page.evaluate(TAP_CHECK.replace("LIMIT", str(TAP_PX)))
     assert found == ["button[name=] 120x30"]
+
+
+def test_logging_out_forgets_the_pages_kept_for_offline(apprentice, live_app):
+    page = apprentice
+    _, circuit_id = seed_circuit(live_app)
+    url = f"/circuits/{circuit_id}/test/ln"
+    page.goto(url)
+    wait_for_worker(page)
+    wait_until_kept(page, url)
+    page.get_by_role("button", name="Log out").tap()
+    expect(page.get_by_role("heading", name="Log in")).to_be_visible()
+    page.wait_for_function("async (path) => !(await caches.match(new URL(path, location.href)"
+                           ".href))", arg=url)
+    assert page.evaluate("async () => (await caches.keys()).some(k => k.endsWith('-shell'))")
+
+
+def test_without_the_page_script_a_reading_form_still_queues_or_saves(page, context, live_app,
+                                                                      log_in):
+    """If app.js is missing, offline.js itself posts the form, and queues it when the post
+    fails on the network."""
+    # on the context, before the first page, so the service worker never holds a copy either
+    context.route("**/static/js/app.js", lambda route: route.abort())
+    log_in(page)
+    _, circuit_id = seed_circuit(live_app)
+    page.goto(f"/circuits/{circuit_id}/test/ln")
+    assert page.evaluate("typeof window.ringtestOffline") == "object"
+    post = f"**/circuits/{circuit_id}/test/reading"
+    page.route(post, lambda route: route.abort("internetdisconnected"))
+    queued_id = card(page, "r-ln-a").locator("input[name='client_id']").input_value()
+    card(page, "r-ln-a").get_by_role("button", name="OL").tap()
+    expect(page.locator("#offline-status")).to_contain_text("L–N at outlet a = OL")
+    assert writes_with(live_app, queued_id) == 0
+
+    page.unroute(post)
+    saved_id = card(page, "r-ln-b").locator("input[name='client_id']").input_value()
+    enter(page, "r-ln-b", "0.26")  # online: posted by fetch, then the page is shown again
+    expect(page.locator("p.flash-ok")).to_contain_text("Saved L–N at b")
+    assert writes_with(live_app, saved_id) == 1
+    assert float(outlet_reading(live_app, circuit_id, "b")) == pytest.approx(0.26)
+    # the page load sends what was waiting
+    expect(page.locator("#offline-status")).to_contain_text("Sent 1 reading")
+    assert writes_with(live_app, queued_id) == 1
+    assert outlet_reading(live_app, circuit_id, "a") == "OL"
