@@ -203,13 +203,19 @@ def wait_until_kept(page, path: str) -> None:
         "async (path) => !!(await caches.match(new URL(path, location.href).href))", arg=path)
 
 
-def test_a_visited_page_opens_offline(apprentice, live_app, context):
-    page = apprentice
+def visit_and_keep(page, live_app) -> tuple[int, str]:
+    """Open a fresh circuit's step 2 page and wait until the service worker holds a copy."""
     _, circuit_id = seed_circuit(live_app)
     url = f"/circuits/{circuit_id}/test/ln"
     page.goto(url)
     wait_for_worker(page)
     wait_until_kept(page, url)
+    return circuit_id, url
+
+
+def test_a_visited_page_opens_offline(apprentice, live_app, context):
+    page = apprentice
+    circuit_id, url = visit_and_keep(page, live_app)
     context.set_offline(True)
     try:
         page.reload()
@@ -301,11 +307,7 @@ def test_the_layout_checks_catch_what_they_look_for(page):
 
 def test_logging_out_forgets_the_pages_kept_for_offline(apprentice, live_app):
     page = apprentice
-    _, circuit_id = seed_circuit(live_app)
-    url = f"/circuits/{circuit_id}/test/ln"
-    page.goto(url)
-    wait_for_worker(page)
-    wait_until_kept(page, url)
+    circuit_id, url = visit_and_keep(page, live_app)
     page.get_by_role("button", name="Log out").tap()
     expect(page.get_by_role("heading", name="Log in")).to_be_visible()
     page.wait_for_function("async (path) => !(await caches.match(new URL(path, location.href)"
