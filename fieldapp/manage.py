@@ -2,7 +2,8 @@
 
 setup: create or upgrade the database, create the demo users with random passwords (printed
 once, never stored in clear), load demo_jobs/*.json into an empty database, print the logins.
-FIELDAPP_DEMO_PASSWORD sets one known password for every demo user (tests and CI only).
+FIELDAPP_DEMO_PASSWORD sets one known password for every demo user (tests and CI only); the
+app setting PASSWORD_HASH_METHOD (werkzeug method string) lets tests hash quickly.
 """
 
 from __future__ import annotations
@@ -47,14 +48,15 @@ def new_password() -> str:
     return secrets.token_urlsafe(9)
 
 
-def seed_users(fixed_password: str | None = None) -> list[tuple[User, str]]:
+def seed_users(fixed_password: str | None = None,
+               method: str | None = None) -> list[tuple[User, str]]:
     """The demo users, when there are no users yet; returns (user, password) pairs."""
     if db.session.scalar(select(func.count(User.id))):
         return []
     created = []
     for username, name, role in DEMO_USERS:
         password = fixed_password or new_password()
-        created.append((create_user(username, name, role, password), password))
+        created.append((create_user(username, name, role, password, method), password))
     return created
 
 
@@ -79,7 +81,8 @@ def setup(app=None, out=sys.stdout) -> None:
     app = app or create_app()
     with app.app_context():
         migrations.upgrade(db.engine)
-        created = seed_users(app.config.get("DEMO_PASSWORD"))
+        created = seed_users(app.config.get("DEMO_PASSWORD"),
+                             app.config.get("PASSWORD_HASH_METHOD"))
         jobs = load_demo_jobs(out=out)
         db.session.commit()
         print(f"database ready at revision {migrations.current_revision(db.engine)}", file=out)
@@ -106,7 +109,9 @@ def reset_password(username: str, app=None, out=sys.stdout) -> int:
             print(f"no user {username!r}", file=sys.stderr)
             return 1
         password = new_password()
-        user.password_hash = generate_password_hash(password)
+        method = app.config.get("PASSWORD_HASH_METHOD")
+        user.password_hash = (generate_password_hash(password, method) if method
+                              else generate_password_hash(password))
         db.session.commit()
         print(f"new password for {username}: {password}", file=out)
         return 0

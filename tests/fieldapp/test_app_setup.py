@@ -4,7 +4,10 @@ from __future__ import annotations
 
 import io
 import json
+import os
 import re
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -19,6 +22,8 @@ from fieldapp.extensions import db
 from fieldapp.models import ChangeLog, Circuit, Job, User
 
 DEMO_DIR = Path(__file__).resolve().parents[2] / "demo_jobs"
+#: Few pbkdf2 rounds: these tests check who gets which password, not the hash's strength.
+FAST_HASH = "pbkdf2:sha256:1000"
 
 
 # ------------------------------------------------------------------ configuration
@@ -121,7 +126,8 @@ def test_migrations_and_a_reading_on_postgresql(pg_cluster, tmp_path):
 def fresh_app(monkeypatch, tmp_path):
     monkeypatch.delenv("FIELDAPP_DEMO_PASSWORD", raising=False)
     monkeypatch.delenv("DATABASE_URL", raising=False)
-    app = create_app({"INSTANCE_PATH": str(tmp_path), "SECRET_KEY": "x"})
+    app = create_app({"INSTANCE_PATH": str(tmp_path), "SECRET_KEY": "x",
+                      "PASSWORD_HASH_METHOD": FAST_HASH})
     yield app
     with app.app_context():
         db.session.remove()
@@ -144,6 +150,7 @@ def test_setup_creates_users_with_random_passwords_printed_once(fresh_app, tmp_p
         for user in db.session.scalars(select(User)):
             assert printed[user.username] not in user.password_hash
             assert check_password_hash(user.password_hash, printed[user.username])
+            assert user.password_hash.startswith("pbkdf2:sha256:1000$")
         assert {u.role for u in db.session.scalars(select(User))} == {
             "apprentice", "tester", "supervisor"}
     again = run_setup(fresh_app)
@@ -158,7 +165,8 @@ def test_each_setup_makes_new_passwords(monkeypatch, tmp_path):
     passwords = []
     for n in range(2):
         monkeypatch.delenv("FIELDAPP_DEMO_PASSWORD", raising=False)
-        app = create_app({"INSTANCE_PATH": str(tmp_path / str(n)), "SECRET_KEY": "x"})
+        app = create_app({"INSTANCE_PATH": str(tmp_path / str(n)), "SECRET_KEY": "x",
+                          "PASSWORD_HASH_METHOD": FAST_HASH})
         passwords.append(re.findall(r"password (\S+)", run_setup(app)))
         with app.app_context():
             db.engine.dispose()
@@ -167,7 +175,8 @@ def test_each_setup_makes_new_passwords(monkeypatch, tmp_path):
 
 def test_demo_password_from_the_environment(monkeypatch, tmp_path):
     monkeypatch.setenv("FIELDAPP_DEMO_PASSWORD", "ci-only-password")
-    app = create_app({"INSTANCE_PATH": str(tmp_path), "SECRET_KEY": "x"})
+    app = create_app({"INSTANCE_PATH": str(tmp_path), "SECRET_KEY": "x",
+                      "PASSWORD_HASH_METHOD": FAST_HASH})
     run_setup(app)
     with app.app_context():
         user = db.session.scalar(select(User).where(User.username == "tester"))
@@ -222,3 +231,14 @@ def test_reset_password(fresh_app):
         user = db.session.scalar(select(User).where(User.username == "tester"))
         assert check_password_hash(user.password_hash, password)
     assert manage.reset_password("nobody", fresh_app, out=out) == 1
+
+
+def test_the_setup_command_as_make_run_calls_it(tmp_path):
+    env = {k: v for k, v in os.environ.items() if k not in ("DATABASE_URL", "SECRET_KEY")}
+    env.update({"FIELDAPP_INSTANCE_PATH": str(tmp_path), "FIELDAPP_DEMO_PASSWORD": "cli-test-9"})
+    result = subprocess.run([sys.executable, "-m", "fieldapp.manage", "setup"], env=env,
+                            capture_output=True, text=True, timeout=120, check=False)
+    assert result.returncode == 0, result.stderr
+    assert f"database ready at revision {migrations.head_revision()}" in result.stdout
+    assert "user tester      password cli-test-9" in result.stdout
+    assert (tmp_path / "fieldapp.sqlite").exists() and (tmp_path / "secret_key").exists()
