@@ -209,3 +209,12 @@ def test_offline_script_is_linked_only_when_present(app, client, tmp_path):
     (tmp_path / "js").mkdir()
     (tmp_path / "js" / "offline.js").write_text("// queue\n")
     assert b"/static/js/offline.js" in client.get("/login").data
+
+
+def test_only_the_supervisor_sees_the_review_link(app, tester, supervisor, parse):
+    if "review.index" not in app.view_functions:
+        pytest.skip("the review blueprint is not installed")
+    assert parse(supervisor.get("/jobs/")).select_one('nav a[href="/review/"]') is not None
+    assert parse(tester.get("/jobs/")).select_one('nav a[href="/review/"]') is None
+    assert parse(tester.get("/jobs/")).select_one('a[href="/jobs/new"]') is not None
+    assert parse(supervisor.get("/jobs/")).select_one('a[href="/jobs/new"]') is None
