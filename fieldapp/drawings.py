@@ -441,15 +441,22 @@ def _short(text: str, chars: int) -> str:
     return text if len(text) <= chars else text[: chars - 1].rstrip() + "…"
 
 
-def _outer_labels(positions: list[tuple[float, str]]) -> tuple[list[str], float]:
+def _outer_labels(positions: list[tuple[float, str]],
+                  points: list[tuple[float, float]]) -> tuple[list[str], float]:
     """Short labels just outside the ring, anchored away from the centre. A label that would
-    overlap one placed before it moves outward a line at a time. Returns the elements and the
+    overlap another point's symbol (``points``, the labelled ones first and in the same order)
+    or a label placed before it moves outward a line at a time. Returns the elements and the
     lowest y any label reaches."""
-    out, boxes, lowest = [], [], _CY + _R
-    for position, label in positions:
+    pad = _NODE + 6  # room for a suspect halo
+    symbols = [(x - pad, y - pad, x + pad, y + pad) for x, y in points]
+    boxes: list[tuple] = []
+    out, lowest = [], _CY + _R
+    for own, (position, label) in enumerate(positions):
+        others = symbols[:own] + symbols[own + 1:] + boxes
         side = math.sin(_angle(position))
         anchor = "end" if side > 0.35 else "start" if side < -0.35 else "middle"
-        for step in range(4):
+        # outward a line at a time; when six lines are not enough, try again shorter
+        for longest, step in [(16, k) for k in range(6)] + [(7, k) for k in range(6)]:
             x, y = _on_ring(position, _R + _NODE + 7 + 13 * step)
             if anchor == "middle":
                 y += 4 if y > _CY else -2
@@ -457,12 +464,12 @@ def _outer_labels(positions: list[tuple[float, str]]) -> tuple[list[str], float]
             else:
                 y += 4
                 room = x if anchor == "end" else WIDTH - x
-            text = _short(label, min(max(int((room - 4) / 6.6), 4), 16))
+            text = _short(label, min(max(int((room - 4) / 6.6), 4), longest))
             width = len(text) * 6.6
             left = {"end": x - width, "start": x, "middle": x - width / 2}[anchor]
             box = (left - 2, y - 11, left + width + 2, y + 3)
             if not any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3]
-                       for b in boxes):
+                       for b in others):
                 break
         boxes.append(box)
         lowest = max(lowest, box[3])
@@ -622,7 +629,8 @@ def ring_picture(diagnosis: dict) -> Markup:
             body.append(_halo(x, y))
         if point.get("ok") is False:
             body.append(_zs_badge(x, y))
-    labels, lowest = _outer_labels([(positions[str(p.get("id"))], _label(p)) for p in ring])
+    labels, lowest = _outer_labels([(positions[str(p.get("id"))], _label(p)) for p in ring],
+                                   [xy for _, xy in drawn])
     body += labels + over
 
     y = max(_CY + _R + 40, lowest + 24)

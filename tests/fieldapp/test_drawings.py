@@ -612,3 +612,24 @@ def test_demo_jobs_cover_the_fault_marks():
     codes = {f["code"] for record in demo_records() for f in diagnose(record.values[0])[
         "findings"] if f["severity"] == "fault"}
     assert {"interconnection", "open_conductor"} <= codes
+
+
+def test_labels_round_the_ring_do_not_overlap():
+    diag = diagnosis([point("f", "Loft", 0.05)]
+                     + [point(x, f"Bedroom {x} long label", 0.5) for x in "abcde"]
+                     + [point("g", "Porch", 0.95)])
+    root = parse(drawings.ring_picture(diag))
+    boxes = []
+    for t in root.iter(f"{SVG}text"):
+        if t.find(f"{SVG}title") is None:
+            continue
+        words = t.find(f"{SVG}title").tail or ""
+        width = 6.6 * len(words)  # about the advance of 11-unit sans text (measured here)
+        x, y = float(t.get("x")), float(t.get("y"))
+        left = {"end": x - width, "middle": x - width / 2}.get(t.get("text-anchor"), x)
+        boxes.append((left, y - 11, left + width, y + 2))
+        assert left >= 0 and left + width <= 360
+    assert len(boxes) == 7
+    for i, a in enumerate(boxes):
+        for b in boxes[i + 1:]:
+            assert not (a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3]), (a, b)
