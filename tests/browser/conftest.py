@@ -35,7 +35,7 @@ def pytest_collection_modifyitems(config, items):
         return
     skip = pytest.mark.skip(reason=f"{CHROMIUM} is not installed (apt-get install chromium)")
     for item in items:
-        if "browser" in item.keywords:
+        if item.get_closest_marker("browser"):
             item.add_marker(skip)
 
 
