@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from flask_wtf import FlaskForm
-from wtforms import SearchField, SelectField, SubmitField, TextAreaField
+from wtforms import SelectField, StringField, SubmitField, TextAreaField
 from wtforms.validators import DataRequired, Length, Optional
 
 from fieldapp.models import JOB_STATUSES
@@ -25,7 +25,7 @@ class FilterForm(FlaskForm):
 
     status = SelectField("Status", choices=options([("", "any status")] + [
         (s, STATUS_LABELS[s]) for s in JOB_STATUSES]), validators=[Optional()])
-    q = SearchField("Site or job reference", validators=[Optional(), Length(max=100)])
+    q = StringField("Site or job reference", validators=[Optional(), Length(max=100)])
     submit = SubmitField("Show")
 
 

@@ -17,10 +17,14 @@ def ids(app, circuit_id):
         return circuit.job_id, {o.key: o.id for o in circuit.outlets}
 
 
+HISTORY_PARTS = ("when", "who", "device", "what", "field", "change")
+
+
 def history_rows(client, parse, url):
+    """Each history entry as [when, who, device, what, field, old -> new], newest first."""
     soup = parse(client.get(url))
-    return [[" ".join(td.get_text(" ").split()) for td in tr.find_all("td")]
-            for tr in soup.select("table.history tbody tr")]
+    return [[" ".join(row.select_one(f".{part}").get_text(" ").split()) for part in HISTORY_PARTS]
+            for row in soup.select("li.history-row")]
 
 
 def test_every_edit_path_leaves_history(app, make_circuit, tester, supervisor, parse):

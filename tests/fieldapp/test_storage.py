@@ -94,7 +94,8 @@ def test_create_edit_and_history(app, tester, make_circuit):
     assert rows[-1].device == "phone of the tester"
     page = tester.get(f"/review/jobs/{job_id}/history?outlet={outlet_id}&field=le")
     text = " ".join(page.get_data(as_text=True).split())
-    assert page.status_code == 200 and "0.34</span> → <strong>0.36" in text
+    assert page.status_code == 200
+    assert '<span class="old">0.34</span> → <strong class="new">0.36</strong>' in text
 
 
 def test_submit_approve_lock_and_reopen(app, tester, supervisor, make_circuit):
