@@ -342,3 +342,21 @@ def test_without_the_page_script_a_reading_form_still_queues_or_saves(page, cont
     expect(page.locator("#offline-status")).to_contain_text("Sent 1 reading")
     assert writes_with(live_app, queued_id) == 1
     assert outlet_reading(live_app, circuit_id, "a") == "OL"
+
+
+def test_a_new_worker_deletes_the_caches_of_older_versions(page):
+    page.goto("/static/offline.html")  # same origin, and registers no worker
+    page.evaluate("""async () => {
+      await (await caches.open("ringcheck-v0-shell")).put("/old", new Response("old"));
+      await caches.open("someone-elses-cache");
+    }""")
+    page.goto("/login")
+    wait_for_worker(page)
+    version = re.search(r'const VERSION = "([^"]+)"', page.evaluate(
+        "fetch('/sw.js').then(r => r.text())")).group(1)
+    names = page.evaluate("caches.keys()")
+    assert "ringcheck-v0-shell" not in names
+    assert f"{version}-shell" in names and "someone-elses-cache" in names
+    shell = page.evaluate(f"caches.open('{version}-shell').then(c => c.keys())"
+                          ".then(keys => keys.map(k => new URL(k.url).pathname))")
+    assert {"/static/offline.html", "/static/app.css", "/static/js/offline.js"} <= set(shell)
