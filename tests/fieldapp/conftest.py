@@ -29,24 +29,30 @@ def login(test_password):
 
 
 @pytest.fixture
-def tester(app, login):
-    c = app.test_client()
-    login(c, "test")
-    return c
+def logged_in(app, login):
+    """logged_in(username) -> a new test client logged in as that user."""
+
+    def make(username):
+        c = app.test_client()
+        login(c, username)
+        return c
+
+    return make
 
 
 @pytest.fixture
-def apprentice(app, login):
-    c = app.test_client()
-    login(c, "appr")
-    return c
+def tester(logged_in):
+    return logged_in("test")
 
 
 @pytest.fixture
-def supervisor(app, login):
-    c = app.test_client()
-    login(c, "super")
-    return c
+def apprentice(logged_in):
+    return logged_in("appr")
+
+
+@pytest.fixture
+def supervisor(logged_in):
+    return logged_in("super")
 
 
 @pytest.fixture
