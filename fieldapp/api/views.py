@@ -21,7 +21,7 @@ from fieldapp.extensions import db
 from fieldapp.models import Circuit
 from fieldapp.records import circuit_record, diagnose_circuit
 from fieldapp.ringtest import feedback as fb
-from fieldapp.ringtest.views import anchor_for, reading_message
+from fieldapp.ringtest.views import anchor_for, note_progress, reading_message
 from fieldapp.web import actor
 
 
@@ -77,12 +77,14 @@ def post_reading(circuit_id: int):
             return _error(400, "outlet", "No such outlet on this circuit.")
     if data["value"] is None or (isinstance(data["value"], str) and not data["value"].strip()):
         return _error(400, "value", "Type the reading in ohms, or tap OL if the meter shows OL.")
+    who = actor()
     try:
-        result = changes.set_reading(circuit, data["step"], data["value"], actor(),
+        result = changes.set_reading(circuit, data["step"], data["value"], who,
                                      outlet=outlet, client_id=data["client_id"])
     except ValueError as error:
         db.session.rollback()
         return _error(400, "value", reading_message(error))
+    note_progress(circuit, "e2e" if outlet is None else data["step"], who)
     db.session.commit()
     return jsonify(ReadingOut().dump(_reading_reply(circuit, data, result))), 200
 

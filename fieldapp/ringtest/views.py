@@ -245,6 +245,12 @@ def step(circuit_id: int, step: str):
     return render_step(_circuit(circuit_id), step)
 
 
+def note_progress(circuit: Circuit, step: str, who: changes.Actor) -> None:
+    """A reading at a later step moves the resume point there (logged like any change)."""
+    if STEPS.index(step) > STEPS.index(circuit.current_step):
+        changes.update(circuit, {"current_step": step}, who)
+
+
 def reading_message(error: ValueError) -> str:
     """ringmath's parse error in plain words for the form (the field path dropped)."""
     text = str(error)
@@ -280,13 +286,15 @@ def save_reading(circuit_id: int):
     if raw is None:
         form.value.errors = ["Type the reading in ohms, or tap OL if the meter shows OL."]
         return render_step(circuit, step, bad=form, status=422)
+    who = actor()
     try:
-        result = changes.set_reading(circuit, field, raw, actor(), outlet=outlet,
+        result = changes.set_reading(circuit, field, raw, who, outlet=outlet,
                                      client_id=form.client_id.data or None)
     except ValueError as error:
         db.session.rollback()
         form.value.errors = [reading_message(error)]
         return render_step(circuit, step, bad=form, status=422)
+    note_progress(circuit, step, who)
     db.session.commit()
     _flash_saved(circuit, field, outlet, result, raw)
     items = _reading_items(circuit, step, None)

@@ -233,6 +233,15 @@ def test_next_step_moves_forward_and_going_back_keeps_the_place(app, tester, mak
         assert db.session.get(Circuit, cid).current_step == "le"
 
 
+def test_a_reading_at_a_later_step_moves_the_resume_point(app, tester, make_circuit):
+    cid = make_circuit(e2e=E2E, outlets=[{"label": "Kitchen"}])  # resume point: step 1
+    reading(tester, cid, "le", "0.34", outlet="a", client_id="pytest-later-1")
+    reading(tester, cid, "r1", "0.53", client_id="pytest-later-2")  # a correction back in step 1
+    with app.app_context():
+        assert db.session.get(Circuit, cid).current_step == "le"
+    assert tester.get(f"/circuits/{cid}/test").headers["Location"].endswith("/test/le")
+
+
 def test_unknown_step_is_not_found(tester, make_circuit):
     cid = make_circuit()
     assert tester.get(f"/circuits/{cid}/test/results").status_code == 404
