@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import datetime as dt
 
-from flask import flash, redirect, render_template, request, url_for
+from flask import abort, flash, redirect, render_template, request, url_for
 from flask_login import current_user, login_required
 from sqlalchemy import func, select
 
@@ -128,6 +128,8 @@ def edit(job_id: int):
 @role_required(*TESTING_ROLES)
 def submit(job_id: int):
     job = get_or_404(Job, job_id)
+    if job.tester_id not in (None, current_user.id):
+        abort(403)  # the job's own tester submits it (and gets it back when it is returned)
     locked = _refuse_locked(job)
     if locked:
         return locked

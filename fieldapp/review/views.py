@@ -59,7 +59,7 @@ def index():
         inputs = job_inputs(job)
         rows.append({"job": job, "flags": job_flags(inputs["diagnoses"], inputs["problems"])})
     return render_template("review/index.html", form=form, rows=rows,
-                           status_labels=STATUS_LABELS)
+                           status_labels=STATUS_LABELS, cautions=CAUTIONS)
 
 
 def _review_page(job: Job, status: int = 200, **forms):

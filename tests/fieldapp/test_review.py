@@ -83,6 +83,15 @@ def test_review_pages_are_for_supervisors(request, submitted, who):
     assert client.get(f"/review/jobs/{jid}").status_code == 403
 
 
+def test_only_the_jobs_tester_submits_it(app, make_circuit, apprentice, tester):
+    jid = job_of(app, make_circuit(**HEALTHY))  # tested by "test"
+    before = snapshot(app)
+    assert apprentice.post(f"/jobs/{jid}/submit").status_code == 403
+    assert snapshot(app) == before
+    assert tester.post(f"/jobs/{jid}/submit").status_code == 302
+    assert job_row(app, jid)["status"] == "submitted"
+
+
 def test_logged_out_is_sent_to_login(app, submitted):
     jid, _ = submitted
     response = app.test_client().post(f"/review/jobs/{jid}/approve")
