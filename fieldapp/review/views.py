@@ -21,7 +21,7 @@ from fieldapp.review.forms import (
     ReturnForm,
 )
 from fieldapp.sheets.context import sheet_context
-from fieldapp.sheets.inputs import job_inputs
+from fieldapp.sheets.inputs import job_diagnoses, job_inputs
 from fieldapp.web import actor, get_or_404
 from ringmath.messages import CAUTIONS
 
@@ -56,8 +56,7 @@ def index():
                                     Job.reference.ilike(pattern, escape="\\")))
     rows = []
     for job in db.session.scalars(query):
-        inputs = job_inputs(job)
-        rows.append({"job": job, "flags": job_flags(inputs["diagnoses"], inputs["problems"])})
+        rows.append({"job": job, "flags": job_flags(*job_diagnoses(job))})
     return render_template("review/index.html", form=form, rows=rows,
                            status_labels=STATUS_LABELS, cautions=CAUTIONS)
 

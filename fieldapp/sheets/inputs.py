@@ -53,12 +53,14 @@ def job_people(job: Job) -> dict:
     }
 
 
+def job_diagnoses(job: Job) -> tuple[list, list]:
+    """(diagnoses, problems): one of each per circuit, in the job's order."""
+    results = [diagnosis_of(circuit) for circuit in job.circuits]
+    return [diagnosis for diagnosis, _ in results], [problem for _, problem in results]
+
+
 def job_inputs(job: Job) -> dict:
     """Keyword arguments for ``sheet_context``: document, diagnoses, people, problems."""
-    results = [diagnosis_of(circuit) for circuit in job.circuits]
-    return {
-        "document": export_document(job),
-        "diagnoses": [diagnosis for diagnosis, _ in results],
-        "problems": [problem for _, problem in results],
-        "people": job_people(job),
-    }
+    diagnoses, problems = job_diagnoses(job)
+    return {"document": export_document(job), "diagnoses": diagnoses, "problems": problems,
+            "people": job_people(job)}
