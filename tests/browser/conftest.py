@@ -116,8 +116,7 @@ def _log_in(page, username: str = "apprentice") -> None:
     page.get_by_label("User name").fill(username)
     page.get_by_label("Password").fill(PASSWORD)
     page.get_by_role("button", name="Log in").click()
-    page.wait_for_load_state()
-    assert "/login" not in page.url, page.content()[:500]
+    page.wait_for_url(lambda url: "/login" not in url)
 
 
 @pytest.fixture
