@@ -765,6 +765,7 @@ def _panel(diagnosis: dict, step: str, top: float, ring: list[dict], spurs: list
                          "No outlet readings yet", size=12, anchor="middle", fill=MUTED))
         return out
     column = (_PLOT_RIGHT - _PLOT_LEFT) / len(points)
+    every = max(1, math.ceil(20 / column))  # number every column only where they fit
     if spurs and ring:
         x = _PLOT_LEFT + column * len(ring)
         out.append(_line(x, plot_top, x, plot_bottom, stroke=MUTED, width=1, dash="2 2"))
@@ -772,18 +773,24 @@ def _panel(diagnosis: dict, step: str, top: float, ring: list[dict], spurs: list
     for k, (point, own, verdict) in enumerate(judged):
         x = _PLOT_LEFT + column * (k + 0.5)
         oid = str(point.get("id"))
-        out.append(_text(x, plot_bottom + 14, numbers[oid], size=11, anchor="middle"))
+        if k % every == 0:
+            out.append(_text(x, plot_bottom + 14, numbers[oid], size=11, anchor="middle"))
         if point.get("spur_from") and own:
             out.append(_el("rect", x=x - 5, y=y_of(own[1]), width=10.0,
                            height=max(y_of(own[0]) - y_of(own[1]), 1.0), fill=BAND_FILL,
                            stroke=MUTED, stroke_width=1.0))
         out.append(_marker(x, verdict, _finite(point.get(field)), y_of, plot_top, y_max,
-                           _label(point)))
+                           _label(point), short=_crowded(len(points))))
     return out
 
 
+def _crowded(count: int) -> bool:
+    """True when the plot's columns are too narrow for the words "high" and "low"."""
+    return count > 0 and (_PLOT_RIGHT - _PLOT_LEFT) / count < 26
+
+
 def _marker(x: float, verdict: str, value: float | None, y_of, plot_top: float, y_max: float,
-            label: str) -> str:
+            label: str, short: bool = False) -> str:
     """One reading's mark: dot in range, triangle and word out of range, OL at the top edge."""
     if verdict == "missing":
         return _text(x, y_of(0) - 4, "–", size=12, anchor="middle", fill=MUTED,
@@ -801,9 +808,10 @@ def _marker(x: float, verdict: str, value: float | None, y_of, plot_top: float, 
         d = -1 if up else 1
         shape = _polygon([(x, y + 7 * d), (x + 7, y - 5 * d), (x - 7, y - 5 * d)], fill=ALERT,
                          stroke=INK, width=1)
-        word = verdict
+        word = verdict[0].upper() if short else verdict
         if up and value > y_max:
-            word_y, word = y + 22, f"{verdict} {_ohms(value)}"
+            word_y = y + 22
+            word = word if short else f"{verdict} {_ohms(value)}"
         elif up:
             word_y = y - 12
         else:
@@ -837,7 +845,8 @@ def readings_plot(diagnosis: dict) -> Markup:
         body += _panel(diagnosis, step, top, ring, spurs, numbers)
         top += _PANEL_HEIGHT + 30
     y = top
-    for line in _LEGEND:
+    crowded = ("H, L: high, low where the columns are narrow",)
+    for line in _LEGEND + (crowded if _crowded(len(ring + spurs)) else ()):
         body.append(_text(8, y, line, size=11, fill=MUTED))
         y += 15
     key, y = _key(ring + spurs, numbers, set(), y + 14, with_notes=False)

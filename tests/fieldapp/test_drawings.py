@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import json
 import math
+import random
 import re
 import xml.etree.ElementTree as ET
 from pathlib import Path
@@ -633,3 +634,22 @@ def test_labels_round_the_ring_do_not_overlap():
     for i, a in enumerate(boxes):
         for b in boxes[i + 1:]:
             assert not (a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3]), (a, b)
+
+
+def test_a_crowded_plot_keeps_its_numbers_apart_and_shortens_its_words():
+    rng = random.Random(7)  # seeded: the same readings every run
+    pts = [point(f"o{i}", f"Room {i}", ln=round(rng.uniform(0.17, 0.36), 2),
+                 le=round(rng.uniform(0.25, 0.44), 2)) for i in range(24)]
+    diag = diagnosis(pts)
+    root = parse(drawings.readings_plot(diag))
+    counts = out_of_band(diag)
+    assert counts["high"] and counts["low"]
+    words = texts(root)
+    assert words.count("H") == counts["high"] and words.count("L") == counts["low"]
+    assert "high" not in words and "low" not in words
+    for panel in panels(root):
+        bottom = max(panel["ticks"].values())  # the y of 0 Ω: the x axis
+        ticks = sorted(float(t.get("x")) for t in root.iter(f"{SVG}text")
+                       if abs(float(t.get("y")) - bottom - 14) < 0.5)
+        assert 8 <= len(ticks) <= 12
+        assert min(b - a for a, b in zip(ticks, ticks[1:], strict=False)) >= 18
