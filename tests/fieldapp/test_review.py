@@ -286,6 +286,34 @@ def test_the_write_helpers_refuse_a_locked_job_themselves(app, make_circuit):
             db.session.rollback()
 
 
+def test_a_refused_write_inside_a_request_is_answered_and_rolled_back(app, make_circuit,
+                                                                       login):
+    """A view that forgot its own check still cannot change a locked job: 409, nothing kept."""
+    from fieldapp import changes
+    from fieldapp.extensions import db
+    from fieldapp.models import Circuit
+
+    cid = make_circuit(status="approved", **HEALTHY)
+
+    @app.post("/test-only/rename/<int:circuit_id>")
+    def careless_view(circuit_id):
+        circuit = db.session.get(Circuit, circuit_id)
+        circuit.way = "99"  # an unlogged change made before the logged one is refused
+        changes.update(circuit, {"description": "renamed"}, changes.Actor(None, "pytest"))
+        db.session.commit()
+        return "changed"
+
+    tester = app.test_client()
+    login(tester, "test")
+    before = snapshot(app)
+    response = tester.post(f"/test-only/rename/{cid}")
+    assert response.status_code == 409 and "can no longer be changed" in response.get_data(
+        as_text=True)
+    assert snapshot(app) == before
+    with app.app_context():
+        assert db.session.get(Circuit, cid).way == "4"
+
+
 # ---------------------------------------------------------------- the review page and the list
 
 
