@@ -25,8 +25,8 @@ from ringmath.record import RingTest, format_reading, parse_record
 #: rings (bench/diagnosis.py): bridges and breaks are placed right well past 0.1, while a
 #: joint's place is rarely right above 0.06 (step 2 shifts evenly and step 3 only shows a gap).
 LOCATE_SD = {"interconnection": 0.12, "open_conductor": 0.11, "high_resistance_joint": 0.06}
-#: A position whose posterior spread exceeds this is reported as unknown (None).
-POSITION_SD = 0.18
+#: Whole-ring explanations whose readings do not depend on which end an outlet is nearer.
+POSITIONLESS = ("healthy", "wrong_cross_connection")
 #: Two combined explanations closer than this in score (nats) "fit about equally".
 LOOK_ALIKE_NATS = 2.0
 
@@ -41,40 +41,43 @@ def _combine(prep: Prepared, fits: list[Fit], n: int) -> list[tuple[float, Fit, 
 
 
 def _posterior(prep: Prepared, fit: Fit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Each ring outlet's most probable position (ring fraction) and the posterior spread.
+
+    The most probable place rather than the mean: on a broken or bridged ring a reading often
+    fits two places (one each side of the fault), and the mean would fall between them.
+    """
     post = position_posterior(prep, fit)
     t = t_grid(post.shape[1])
     mean = post @ t
     sd = np.sqrt(np.maximum(post @ (t * t) - mean**2, 0.0))
-    return post, mean, sd
+    return post, t[np.argmax(post, axis=1)], sd
 
 
-def _neighbours(prep: Prepared, post: np.ndarray, mean: np.ndarray, x: float) -> list[str]:
-    """The ring outlets on either side of position x (most probable ones)."""
+def _neighbours(prep: Prepared, post: np.ndarray, x: float) -> list[str]:
+    """The two ring outlets nearest position x (smallest expected distance).
+
+    Beside a break the readings fall towards the break from both sides, so the outlets
+    nearest it are well determined even where the side each one is on is not.
+    """
     t = t_grid(post.shape[1])
-    left_p = post[:, t < x].sum(axis=1)
-    left = [i for i in range(len(mean)) if left_p[i] > 0.5]
-    right = [i for i in range(len(mean)) if left_p[i] <= 0.5]
-    picked = []
-    if left:
-        picked.append(max(left, key=lambda i: mean[i]))
-    if right:
-        picked.append(min(right, key=lambda i: mean[i]))
-    return [prep.ring_ids[i] for i in picked]
+    distance = post @ np.abs(t - x)
+    return [prep.ring_ids[i] for i in np.argsort(distance)[:2]]
 
 
 def _named(ids, names: dict) -> list[str]:
     return [names.get(i, i) for i in ids]
 
 
-def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post, mean,
-                 names: dict) -> Finding:
+def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
+                 place: np.ndarray, names: dict) -> Finding:
     """The whole-ring fault of ``fit`` as a Finding, located where the readings allow."""
     located = fit.theta_sd is not None and fit.theta_sd <= LOCATE_SD.get(fit.code, 0.0)
     if fit.code == "interconnection":
         a, b = fit.theta["a"], fit.theta["b"]
+        # inside by posterior mass (a boundary outlet's best place can sit just outside)
         t = t_grid(post.shape[1])
         inside_p = post[:, (t > a) & (t < b)].sum(axis=1)
-        inside = [prep.ring_ids[i] for i in range(len(mean)) if inside_p[i] > 0.5]
+        inside = [prep.ring_ids[i] for i in range(len(place)) if inside_p[i] > 0.5]
         msg, nxt = messages.interconnection(_named(inside, names), located)
         return Finding("interconnection", "fault", msg, nxt, tuple(inside if located else ()),
                        confidence=confidence, section=(a, b))
@@ -83,7 +86,7 @@ def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post, mean,
         return Finding("wrong_cross_connection", "fault", msg, nxt, step=fit.step,
                        confidence=confidence)
     x = fit.theta["x"]
-    near = _neighbours(prep, post, mean, x) if located else []
+    near = _neighbours(prep, post, x) if located else []
     if fit.code == "open_conductor":
         msg, nxt = messages.open_ring(fit.conductor, _named(near, names), located)
     else:
@@ -124,10 +127,10 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
     names = {o.id: (f"{o.label} ({o.id})" if o.label and o.label != o.id else o.id)
              for o in test.outlets}
     best_score, best_fit, best_local = combos[0]
-    post, mean, sd = _posterior(prep, best_fit)
+    post, place, sd = _posterior(prep, best_fit)
     findings: list[Finding] = []
     if best_fit.code != "healthy":
-        findings.append(_fit_finding(prep, best_fit, float(weights[0]), post, mean, names))
+        findings.append(_fit_finding(prep, best_fit, float(weights[0]), post, place, names))
     for lf in best_local:
         findings.extend(_local_finding(lf, names))
     hypotheses = []
@@ -143,21 +146,20 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
         if first != second and "healthy" not in (first, second):
             findings.append(Finding("look_alike", "info", messages.look_alike(first, second),
                                     confidence=float(weights[1])))
-    positions = {}
-    for i, oid in enumerate(prep.ring_ids):
-        known = sd[i] <= POSITION_SD
-        positions[oid] = (float(mean[i]) if known else None, float(sd[i]))
+    # A sound ring (or one with crossed ends) reads the same whichever end an outlet is near:
+    # its readings give no order to draw. A fault breaks that symmetry and places outlets.
+    placed = best_fit.code not in POSITIONLESS
+    positions = {oid: (float(place[i]) if placed else None, float(sd[i]))
+                 for i, oid in enumerate(prep.ring_ids)}
     return {"findings": findings, "hypotheses": hypotheses, "positions": positions}
 
 
 def _ring_order(test: RingTest, positions: dict) -> list[str]:
+    """Ring outlets by inferred position; in visiting order when the readings give none."""
     ring = [o.id for o in test.outlets if o.on_ring]
-    known = [oid for oid in ring if positions.get(oid, (None,))[0] is not None]
-    if len(known) < max(2, len(ring) / 2):
+    if any(positions.get(oid, (None,))[0] is None for oid in ring):
         return ring
-    spacing = {oid: (i + 0.5) / len(ring) for i, oid in enumerate(ring)}
-    return sorted(ring, key=lambda oid: positions[oid][0] if positions[oid][0] is not None
-                  else spacing[oid])
+    return sorted(ring, key=lambda oid: positions[oid][0])
 
 
 def _verdict(test: RingTest, findings: list[Finding]) -> str:
