@@ -1,4 +1,4 @@
-/* Ringcheck service worker: the app shell and visited pages, for use on site without signal.
+/* Ring test service worker: the app shell and visited pages, for use on site without signal.
  *
  * - install: caches the shell (stylesheet, scripts, manifest, icons, the offline page);
  * - activate: deletes caches of older versions and takes control of open pages (which ask
@@ -11,7 +11,7 @@
  */
 "use strict";
 
-const VERSION = "ringcheck-v1";
+const VERSION = "ringcheck-v2";
 const SHELL_CACHE = VERSION + "-shell";
 const PAGE_CACHE = VERSION + "-pages";
 const OFFLINE_PAGE = "/static/offline.html";

@@ -1,4 +1,4 @@
-/* Ringcheck offline outbox: readings entered without a connection are kept on this phone and
+/* Ring test offline outbox: readings entered without a connection are kept on this phone and
  * sent when the connection comes back.
  *
  * Pages work without this script: every reading is an ordinary form post. With it, a reading

@@ -25,8 +25,8 @@ def draw_icons():
 
 def test_manifest_installs_as_a_standalone_app():
     # members and values from the W3C Web Application Manifest specification
-    assert MANIFEST["name"].startswith("Ringcheck")
-    assert MANIFEST["short_name"] == "Ringcheck" and len(MANIFEST["short_name"]) <= 12
+    assert MANIFEST["name"].startswith("Ring test")
+    assert MANIFEST["short_name"] == "Ring test" and len(MANIFEST["short_name"]) <= 12
     assert MANIFEST["start_url"] == "/" and MANIFEST["scope"] == "/"
     assert MANIFEST["display"] == "standalone"
     assert "does not certify" in MANIFEST["description"]
