@@ -153,6 +153,8 @@ def end_to_end_findings(test: RingTest) -> list[Finding]:
     findings = [_open_end_to_end(step, conductor)
                 for step, conductor in STEP_CONDUCTORS.items()
                 if _reading(test, None, step) == math.inf]
+    findings += [_zero_end_to_end(step) for step in STEP_CONDUCTORS
+                 if _reading(test, None, step) == 0.0]
     if finite(e.r1_ohm) and finite(e.rn_ohm):
         diff = round(e.rn_ohm - e.r1_ohm, 2)
         if abs(diff) > ENDS_TOLERANCE_OHM:
@@ -164,6 +166,18 @@ def end_to_end_findings(test: RingTest) -> list[Finding]:
     if length_ohm is not None and finite(e.r1_ohm) and not low_ohm <= e.r1_ohm <= high_ohm:
         findings.append(_cable_length_finding(e.r1_ohm, length_ohm, c))
     return findings
+
+
+def _zero_end_to_end(step: str) -> Finding:
+    """A 0.00 Ω end-to-end reading: no ring cable reads that low (under a metre of cable)."""
+    return Finding(
+        code="end_to_end_zero", severity="warning", step=None,
+        message=(f"{step} reads 0.00 Ω. Even a short ring reads a few hundredths of an ohm end "
+                 "to end, so the two ends were probably touching each other or the leads were "
+                 "measured instead of the conductor."),
+        next_check=(f"Null the leads, separate the two ends at the board and measure {step} "
+                    "again between the two ends of the same conductor."),
+    )
 
 
 def _open_end_to_end(step: str, conductor: str) -> Finding:

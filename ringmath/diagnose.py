@@ -120,6 +120,8 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
     """Fit, rank and locate. Returns findings, hypotheses, positions and ring order."""
     n = prep.n_readings()
     fits = fit_all(prep)
+    if not fits:
+        return {"findings": [], "hypotheses": [], "positions": {}}
     combos = _combine(prep, fits, n)
     scores = np.array([c[0] for c in combos])
     weights = np.exp(scores - scores.max())

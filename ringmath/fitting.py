@@ -272,11 +272,14 @@ def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
 
 
 def fit_all(prep: Prepared) -> list[Fit]:
-    """Every applicable hypothesis, best score first."""
-    fits: list[Fit | None] = [fit_healthy(prep), fit_healthy(prep, "ln"),
-                              fit_healthy(prep, "le")]
+    """Every applicable hypothesis, best score first (none when step 1 cannot be modelled:
+    a reading missing or 0.00 Ω, or more than one conductor open)."""
+    if np.any(np.isnan(prep.e2e_ohm)) or np.any(prep.e2e_ohm <= 0):
+        return []
+    fits: list[Fit | None] = []
     if np.all(np.isfinite(prep.e2e_ohm)):
-        fits.append(fit_bridge(prep))
+        fits += [fit_healthy(prep), fit_healthy(prep, "ln"), fit_healthy(prep, "le"),
+                 fit_bridge(prep)]
     for conductor in CONDUCTOR_INDEX:
         fits.append(fit_open(prep, conductor))
         fits.append(fit_joint(prep, conductor))

@@ -189,3 +189,45 @@ def test_decimal_comma_and_ol_strings_are_read():
     assert result["verdict"] == "satisfactory"
     assert result["end_to_end"]["r1"] == pytest.approx(0.52)
     assert not any(isinstance(v, float) and math.isnan(v) for v in result["end_to_end"].values())
+
+
+def test_zero_end_to_end_reading_is_a_warning_not_a_crash():
+    result = diagnose(_record(_healthy_outlets(), e2e={"r1": 0.0, "rn": 0.52, "r2": 0.85}))
+    assert "end_to_end_zero" in [f["code"] for f in result["findings"]]
+    assert result["verdict"] == "investigate"
+
+
+def test_open_cpc_with_ol_outlets_and_fused_spur_raises_no_numeric_warning():
+    # warnings are errors in this suite: inf - inf in the spur model would fail here
+    outlets = _healthy_outlets(3)
+    outlets[2].update(kind="fcu", fuse_a=3)
+    outlets.append({"id": "sp", "kind": "single_socket", "spur_from": "s2", "ln": 2.43,
+                    "le": "OL"})
+    result = diagnose(_record(outlets, e2e={"r1": 0.55, "rn": 1.04, "r2": "OL"}))
+    assert result["verdict"] == "investigate"
+
+
+def test_random_records_never_crash():
+    # seeded fuzz: any record either diagnoses to JSON-able values or fails with a ValueError
+    # that names a field of the record
+    rng = np.random.default_rng(2026)
+    kinds = ["twin_socket", "single_socket", "fcu", "junction_box", "fixed_equipment"]
+
+    def reading():
+        u = rng.random()
+        return None if u < 0.1 else "OL" if u < 0.15 else round(float(rng.uniform(0, 3)), 2)
+
+    for _ in range(60):
+        outlets = []
+        for j in range(int(rng.integers(0, 7))):
+            kind = str(rng.choice(kinds))
+            o = {"id": f"o{j}", "kind": kind, "ln": reading(), "le": reading(),
+                 "spur_from": f"o{int(rng.integers(0, j))}" if j and rng.random() < 0.3 else None}
+            if kind == "fcu":
+                o["fuse_a"] = 13
+            outlets.append(o)
+        record = _record(outlets, e2e={"r1": reading(), "rn": reading(), "r2": reading()})
+        try:
+            json.dumps(diagnose(record), allow_nan=False)
+        except ValueError as exc:
+            assert str(exc).startswith(("circuit", "outlets", "end_to_end")), exc
