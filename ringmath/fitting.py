@@ -135,7 +135,6 @@ def _refine(evaluate, theta: np.ndarray, ll: np.ndarray, steps: np.ndarray, lowe
     """Local grid refinement: around the best ``keep`` rows, try +-step in each coordinate
     (``steps`` per coordinate; coordinates with a negative step are scaled by factors instead),
     halving the steps each round. Returns all evaluated rows and their logliks."""
-    all_theta, all_ll = [theta], [ll]
     step = steps.astype(float).copy()
     for _ in range(rounds):
         best = theta[np.argsort(ll)[-keep:]]
@@ -156,10 +155,8 @@ def _refine(evaluate, theta: np.ndarray, ll: np.ndarray, steps: np.ndarray, lowe
         cand_ll = evaluate(cand)
         theta = np.concatenate([theta, cand])
         ll = np.concatenate([ll, cand_ll])
-        all_theta.append(cand)
-        all_ll.append(cand_ll)
         step /= 2
-    return np.concatenate(all_theta), np.concatenate(all_ll)
+    return theta, ll
 
 
 def _position_sd(theta_pos: np.ndarray, ll: np.ndarray) -> float:
