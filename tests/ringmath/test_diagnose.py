@@ -25,7 +25,7 @@ def _record(outlets, e2e=None, **circuit):
 def _healthy_outlets(n=6):
     # A sound 2.5/1.5 ring: step 2 reads (r1+rn)/4 = 0.26 everywhere; step 3 reads
     # [r1·r2 + t(1−t)(r1−r2)²]/(r1+r2), 0.32 near the ends to 0.34 mid-ring (common practice:
-    # about (r1+r2)/4, "a little lower near the ends when r1 and r2 differ").
+    # about (r1+r2)/4, a little lower near the ends when r1 and r2 differ).
     t = (np.arange(n) + 0.5) / n
     le = (0.52 * 0.85 + t * (1 - t) * 0.33**2) / 1.37
     return [{"id": f"s{i}", "label": f"Socket {i}", "kind": "twin_socket", "spur_from": None,
