@@ -231,3 +231,29 @@ def test_random_records_never_crash():
             json.dumps(diagnose(record), allow_nan=False)
         except ValueError as exc:
             assert str(exc).startswith(("circuit", "outlets", "end_to_end")), exc
+
+
+@pytest.mark.parametrize(("ln", "le", "expected"), [
+    # step 2 OL only: line and cpc swapped at the outlet, or its neutral not connected
+    ("OL", None, {("reversed_polarity", None), ("open_conductor", "neutral")}),
+    # both OL: its line not connected, or neutral and cpc swapped
+    ("OL", "OL", {("reversed_polarity", None), ("open_conductor", "line")}),
+])
+def test_ol_patterns_name_both_explanations(ln, le, expected):
+    outlets = _healthy_outlets()
+    outlets[3]["ln"] = ln
+    if le is not None:
+        outlets[3]["le"] = le
+    result = diagnose(_record(outlets))
+    pairs = {(f["code"], f["conductor"]) for f in _faults(result) if f["outlets"] == ["s3"]}
+    assert pairs == expected
+    assert all(f["confidence"] <= 0.5 for f in _faults(result) if f["outlets"] == ["s3"])
+
+
+def test_step_two_alone_raised_at_one_outlet_is_a_neutral_joint():
+    outlets = _healthy_outlets()
+    outlets[1]["ln"] = 0.40  # +0.14 Ω in step 2 only: step 3 does not use the neutral
+    result = diagnose(_record(outlets))
+    top = _faults(result)[0]
+    assert (top["code"], top["conductor"], top["outlets"]) == (
+        "high_resistance_joint", "neutral", ["s1"])
