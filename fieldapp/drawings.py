@@ -309,6 +309,12 @@ def _number_map(ring: list[dict], spurs: list[dict]) -> dict[str, int]:
     return {str(p.get("id")): i for i, p in enumerate(ring + spurs, start=1)}
 
 
+def point_numbers(diagnosis: dict) -> dict[str, int]:
+    """The number each point of a diagnosis carries in the ring picture and the readings plot
+    (by point id), so a table printed beside them can use the same numbers."""
+    return _number_map(*_points_in_order(diagnosis))
+
+
 def _label(point: dict) -> str:
     return str(point.get("label") or point.get("id") or "")
 
@@ -581,12 +587,13 @@ def _fault_marks(fault: dict, ring_xy) -> tuple[list[str], list[str]]:
     return [], out
 
 
-def ring_picture(diagnosis: dict) -> Markup:
+def ring_picture(diagnosis: dict, *, key: bool = True) -> Markup:
     """The ring as inferred from the readings: board at the top, outlets round the loop from
     end 1 (left) to end 2 (right), spurs branching inward from their parent, FCUs as squares,
     points over their Zs limit with a warning triangle, and the first fault finding drawn on
     it (a chord across a bridged section, a cross at a break or joint, dashed halos round the
-    outlets it names). A numbered key underneath gives every label in full.
+    outlets it names). A numbered key underneath gives every label in full and the fault in
+    words; ``key=False`` leaves both out, for a page that lists the points and findings itself.
     """
     ring, spurs = _points_in_order(diagnosis)
     numbers = _number_map(ring, spurs)
@@ -634,7 +641,7 @@ def ring_picture(diagnosis: dict) -> Markup:
     body += labels + over
 
     y = max(_CY + _R + 40, lowest + 24)
-    if fault:
+    if fault and key:
         lines, y = _wrapped(12, y, "Suspected: " + str(fault.get("message") or fault.get(
             "code", "")), 50, weight="bold", fill=ALERT)
         body += lines
@@ -642,8 +649,9 @@ def ring_picture(diagnosis: dict) -> Markup:
             lines, y = _wrapped(12, y, "Next: " + str(fault["next_check"]), 52)
             body += lines
         y += 8
-    key, y = _key(ring + spurs, numbers, suspects, y + 6)
-    body += key
+    if key:
+        rows, y = _key(ring + spurs, numbers, suspects, y + 6)
+        body += rows
     lines, y = _wrapped(12, y + 2, "Layout inferred from the readings, not surveyed: verify on "
                         "site. " + ISOLATION_NOTE, 56, size=11, fill=MUTED)
     body += lines
