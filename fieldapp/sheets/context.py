@@ -14,7 +14,7 @@ import math
 
 from markupsafe import Markup
 
-from fieldapp.drawings import KIND_WORDS, ring_picture
+from fieldapp.drawings import KIND_WORDS, point_numbers, ring_picture
 from ringmath.messages import CAUTIONS
 
 VERDICT_WORDS = {
@@ -36,6 +36,18 @@ READING_STATUS_WORDS = {
     "low": "LOW",
     "open": "OPEN",
     "pending": "not taken",
+}
+#: A reading that was taken but has nothing to be checked against yet (its band needs a step 1
+#: reading that is missing or OL).
+NO_BAND = "no band"
+#: A Zs that cannot be judged yet (a reading missing or OL), in words for a black-and-white copy.
+NOT_PROVED = "not proved"
+#: What a Zs "pass" does not say when the circuit as a whole is not satisfactory.
+ZS_ONLY = {
+    "investigate": "The Zs result covers the readings as taken only: the circuit is not "
+                   "satisfactory until the findings below are resolved and the steps repeated.",
+    "incomplete": "The Zs result covers the readings taken so far only: the test is not "
+                  "complete.",
 }
 STEP1 = (("r1", "r1 (line)"), ("rn", "rn (neutral)"), ("r2", "r2 (cpc)"))
 DASH = "—"
@@ -82,7 +94,7 @@ def verdict_of(diagnoses) -> str | None:
 
 
 def _pass_word(ok) -> str:
-    return {True: "pass", False: "FAIL"}.get(ok, DASH)
+    return {True: "pass", False: "FAIL"}.get(ok, NOT_PROVED)
 
 
 def _yes(flag) -> str:
@@ -104,7 +116,7 @@ def _details(circuit: dict) -> list[tuple[str, str]]:
     rcd = circuit.get("rcd")
     rcd_text = (f"{quantity(rcd['rated_ma'])} mA" + (f" type {rcd['type']}" if rcd.get("type")
                                                       else "")) if rcd else "none recorded"
-    safety = circuit.get("safety") or {}
+    safety = circuit.get("safety")
     ze = circuit.get("ze_ohm")
     return [
         ("Protective device (OCPD)", _device(circuit)),
@@ -117,10 +129,11 @@ def _details(circuit: dict) -> list[tuple[str, str]]:
         ("Estimated cable length", f"{quantity(circuit.get('cable_length_m'))} m"
          if circuit.get("cable_length_m") is not None else "not recorded"),
         ("Isolated / locked off / proved dead",
-         " / ".join(_yes(safety.get(k)) for k in ("isolated", "locked_off", "proved_dead"))),
+         " / ".join(_yes(safety.get(k)) for k in ("isolated", "locked_off", "proved_dead"))
+         if safety is not None else "not recorded"),
         ("Safety checks confirmed", " ".join(
-            x for x in (safety.get("confirmed_by"), when(safety.get("confirmed_at"))
-                        if safety.get("confirmed_at") else None) if x) or DASH),
+            x for x in ((safety or {}).get("confirmed_by"), when(safety.get("confirmed_at"))
+                        if (safety or {}).get("confirmed_at") else None) if x) or DASH),
     ]
 
 
@@ -129,24 +142,50 @@ def _reading_status(diagnosis: dict) -> dict[tuple, dict]:
 
 
 def _status_word(status: dict | None) -> str:
-    return READING_STATUS_WORDS.get((status or {}).get("status"), "")
+    status = status or {}
+    if status.get("status") == "pending" and status.get("value") is not None:
+        return NO_BAND
+    return READING_STATUS_WORDS.get(status.get("status"), "")
+
+
+def _numbers(rec: dict, diagnosis: dict) -> dict[str, int]:
+    """Each outlet's number: the one it carries in the ring picture when there is a diagnosis,
+    else its place in visiting order; an outlet the diagnosis does not know comes after."""
+    numbers = point_numbers(diagnosis) if diagnosis else {}
+    for outlet in rec.get("outlets") or []:
+        numbers.setdefault(str(outlet["id"]), max(numbers.values(), default=0) + 1)
+    return numbers
+
+
+def _named_in(diagnosis: dict) -> dict[str, str]:
+    """Per outlet id, the most serious fault or warning finding that names it ("FAULT",
+    "WARNING"), so the schedule can point at the findings."""
+    named: dict[str, str] = {}
+    for severity in ("warning", "fault"):
+        for finding in diagnosis.get("findings") or []:
+            if finding.get("severity") == severity:
+                named.update({str(o): severity.upper() for o in finding.get("outlets") or []})
+    return named
 
 
 def _outlet_rows(rec: dict, diagnosis: dict) -> list[dict]:
     points = {p.get("id"): p for p in diagnosis.get("points") or []}
+    named = _named_in(diagnosis)
     checks = _reading_status(diagnosis)
     labels = {o["id"]: o.get("label") or o["id"] for o in rec.get("outlets") or []}
+    numbers = _numbers(rec, diagnosis)
     rows = []
-    for n, outlet in enumerate(rec.get("outlets") or [], start=1):
+    for outlet in rec.get("outlets") or []:
         point = points.get(outlet["id"], {})
         fed = outlet.get("spur_from")
         rows.append({
-            "n": n,
+            "n": numbers[str(outlet["id"])],
             "id": outlet["id"],
             "label": outlet.get("label") or "",
             "kind": KIND_WORDS.get(outlet.get("kind"), outlet.get("kind") or ""),
             "fuse": f"{quantity(outlet['fuse_a'])} A" if outlet.get("fuse_a") else "",
-            "fed": f"spur from {labels.get(fed, fed)}" if fed else "ring",
+            "fed": f"spur from No. {numbers.get(str(fed), '?')} {labels.get(fed, fed)}" if fed
+                   else "ring",
             "ln": recorded(outlet.get("ln")),
             "ln_check": _status_word(checks.get((outlet["id"], "ln"))),
             "le": recorded(outlet.get("le")),
@@ -156,17 +195,68 @@ def _outlet_rows(rec: dict, diagnosis: dict) -> list[dict]:
             "zs_max": ohm(point.get("zs_max_ohm")),
             "result": _pass_word(point.get("ok")),
             "failed": point.get("ok") is False,
+            "named": named.get(str(outlet["id"]), ""),
         })
     return rows
 
 
-def _findings(diagnosis: dict) -> list[dict]:
+def _findings(diagnosis: dict, numbers: dict[str, int]) -> list[dict]:
+    """The findings in words; the outlets they name by number (as in the schedule and the ring
+    picture) and id (as in the messages)."""
+    def outlet(oid) -> str:
+        number = numbers.get(str(oid))
+        return f"No. {number} ({oid})" if number is not None else str(oid)
+
     return [{
         "severity": (f.get("severity") or "").upper(),
         "message": f.get("message") or "",
         "next_check": f.get("next_check") or "",
-        "outlets": ", ".join(str(o) for o in f.get("outlets") or []),
+        "outlets": ", ".join(outlet(o) for o in f.get("outlets") or []),
     } for f in diagnosis.get("findings") or []]
+
+
+def _zs_result(summary: dict, rows: list[dict]) -> str:
+    """The circuit's Zs result: FAIL when any outlet or the circuit's figure is over its limit,
+    pass when the figure is within it and every outlet passed, else not proved."""
+    ok = None
+    if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
+        ok = summary["zs_ohm"] <= summary["zs_max_ohm"]
+    if ok is False or any(row["failed"] for row in rows):
+        return _pass_word(False)
+    if ok and all(row["result"] == _pass_word(True) for row in rows):
+        return _pass_word(True)
+    return NOT_PROVED
+
+
+def _key_rows(rows: list[dict]) -> list[dict]:
+    """The schedule's outlets in the ring picture's number order, each with a few words."""
+    def notes(row: dict) -> str:
+        words = [f"{row['kind']} {row['fuse']}".strip()]
+        if row["fed"] != "ring":
+            words.append(row["fed"])
+        if row["named"]:
+            words.append(f"{row['named']}: see findings")
+        if row["failed"]:
+            words.append("Zs FAIL")
+        return ", ".join(words)
+
+    return [{"n": row["n"], "label": row["label"] or row["id"], "id": row["id"],
+             "notes": notes(row)} for row in sorted(rows, key=lambda row: row["n"])]
+
+
+def _zs_line(summary: dict, rows: list[dict]) -> str:
+    """The Zs result in one phrase: the circuit's figure against its limit when known, and the
+    outlets over their limit (or open) by number."""
+    parts = []
+    if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
+        parts.append(f"highest Zs {ohm(summary['zs_ohm'])} Ω against a limit of "
+                     f"{ohm(summary['zs_max_ohm'])} Ω")
+    failing = [f"No. {row['n']}" for row in rows if row["failed"]]
+    if failing:
+        parts.append("over the limit or open at " + ", ".join(failing))
+    if not parts:
+        parts.append("Zs cannot be worked out until every step 3 reading is in")
+    return "; ".join(parts)
 
 
 def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str | None) -> dict:
@@ -190,12 +280,11 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         "le": ohm(expected.get("le_ohm")),
         "ln_band": " – ".join(ohm(v) for v in expected.get("ln_band_ohm") or []) or DASH,
         "le_band": " – ".join(ohm(v) for v in expected.get("le_band_ohm") or []) or DASH,
+        "ln_known": expected.get("ln_ohm") is not None,
+        "le_known": expected.get("le_ohm") is not None,
     }
     ctx["outlets"] = _outlet_rows(rec, diagnosis)
     summary = diagnosis.get("circuit") or {}
-    ok = None
-    if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
-        ok = summary["zs_ohm"] <= summary["zs_max_ohm"]
     ctx["summary"] = {
         "r1r2": ohm(summary.get("r1r2_ohm")),
         "zs": ohm(summary.get("zs_ohm")),
@@ -203,12 +292,19 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         "zs_tabulated": ohm(summary.get("zs_tabulated_ohm")),
         "device": summary.get("device") or _device(circuit),
         "limit_source": summary.get("limit_source") or "",
-        "result": _pass_word(ok),
+        "result": _zs_result(summary, ctx["outlets"]),
     }
+    ctx["zs_line"] = _zs_line(summary, ctx["outlets"])
     ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), "Not assessed")
     ctx["summary_sentence"] = diagnosis.get("summary") or problem or ""
-    ctx["findings"] = _findings(diagnosis)
+    ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict"), "")
+                      if ctx["summary"]["result"] == _pass_word(True) else "")
+    ctx["findings"] = _findings(diagnosis, _numbers(rec, diagnosis))
     ctx["picture"] = ring_picture(diagnosis) if diagnosis else Markup("")
+    # the printed sheet's picture leaves out the drawing's own key: the sheet lists the points
+    # beside it (``key``) and prints the findings in full
+    ctx["sketch"] = ring_picture(diagnosis, key=False) if diagnosis else Markup("")
+    ctx["key"] = _key_rows(ctx["outlets"])
     return ctx
 
 

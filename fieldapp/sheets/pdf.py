@@ -24,9 +24,15 @@ def sheet_html(document: dict, diagnoses: list, people: dict | None = None, **kw
                                                               **kwargs))
 
 
-def sheet_pdf(document: dict, diagnoses: list, people: dict | None = None, **kwargs) -> bytes:
-    """The sheet as PDF bytes (A4)."""
+def sheet_document(document: dict, diagnoses: list, people: dict | None = None, **kwargs):
+    """The sheet laid out on A4 pages (a WeasyPrint ``Document``: its pages can be inspected
+    before ``write_pdf``)."""
     from weasyprint import HTML
 
     return HTML(string=sheet_html(document, diagnoses, people, **kwargs),
-                base_url=str(TEMPLATES)).write_pdf()
+                base_url=str(TEMPLATES)).render()
+
+
+def sheet_pdf(document: dict, diagnoses: list, people: dict | None = None, **kwargs) -> bytes:
+    """The sheet as PDF bytes (A4)."""
+    return sheet_document(document, diagnoses, people, **kwargs).write_pdf()

@@ -6,18 +6,27 @@ import io
 import json
 from pathlib import Path
 
+import numpy as np
 import pypdf
 import pytest
+from bs4 import BeautifulSoup
+from weasyprint.formatting_structure import boxes
 
 from fieldapp.sheets.context import recorded, sheet_context
-from fieldapp.sheets.pdf import sheet_html, sheet_pdf
+from fieldapp.sheets.pdf import sheet_document, sheet_html
 from fieldapp.transfer.schemas import dump_document, load_document
 from ringmath.diagnose import diagnose
 from ringmath.messages import CAUTIONS
+from ringmath.simulate import simulate
 
 ROOT = Path(__file__).resolve().parents[2]
 HANDMADE = Path(__file__).parent / "data" / "transfer_handmade.json"
-DOCUMENTS = [HANDMADE, *sorted((ROOT / "demo_jobs").glob("*.json"))]
+DEMOS = {p.name: p for p in sorted((ROOT / "demo_jobs").glob("*.json"))}
+#: A label with no place to break: the sheet must wrap it inside its cell, not print past the
+#: page margin.
+UNBROKEN = "Kitchen-island-pop-up-socket-under-the-worktop-by-the-dishwasher-left-hand-side"
+#: A long ring (seeded simulation) whose schedule cannot fit on one page.
+LONG_RING_OUTLETS = 44
 PEOPLE = {"status": "approved", "tester": "Morwenna Tregear", "submitted_at": "2026-11-27T16:02:00",
           "reviewed_by": "Idris Calloway", "reviewed_at": "2026-11-28T08:30:00",
           "approved_by": "Idris Calloway", "approved_at": "2026-11-28T08:30:00"}
@@ -25,27 +34,65 @@ PEOPLE = {"status": "approved", "tester": "Morwenna Tregear", "submitted_at": "2
 A4_PT = (595.28, 841.89)
 
 
-def as_job_document(path: Path) -> dict:
-    """A demo file as a complete job document (a single circuit record is wrapped)."""
-    doc = json.loads(path.read_text())
+def as_job_document(path: Path | dict) -> dict:
+    """A demo file (or a record) as a complete job document (a single circuit record is
+    wrapped)."""
+    doc = json.loads(path.read_text()) if isinstance(path, Path) else path
     if "circuits" not in doc:
         doc = {"format": "ringtest/1", "job": doc.get("job"),
                "circuits": [{k: doc[k] for k in ("circuit", "end_to_end", "outlets") if k in doc}]}
     return dump_document(load_document(doc))
 
 
-@pytest.fixture(scope="module", params=DOCUMENTS, ids=[p.name for p in DOCUMENTS])
+def handmade_with_an_unbroken_label() -> dict:
+    doc = as_job_document(HANDMADE)
+    doc["circuits"][0]["outlets"][0]["label"] = UNBROKEN
+    return doc
+
+
+def long_ring() -> dict:
+    record, _ = simulate(np.random.default_rng(20261130), None, n_ring=LONG_RING_OUTLETS)
+    record = json.loads(json.dumps(record, default=str))
+    record["job"] = {"reference": "SIM-44", "site": "Seeded simulated ring", "date": "2026-11-30"}
+    record["circuit"]["reference"] = "DB9/1"
+    return as_job_document(record)
+
+
+JOBS = {"handmade": handmade_with_an_unbroken_label,
+        **{name: (lambda path=path: as_job_document(path)) for name, path in DEMOS.items()},
+        "long-ring": long_ring}
+
+
+@pytest.fixture(scope="module", params=list(JOBS))
 def printed(request):
-    """(document, diagnoses, pdf bytes, text of each page)."""
-    doc = as_job_document(request.param)
+    """(document, diagnoses, pdf bytes, text of each page, laid-out WeasyPrint document):
+    one PDF per job."""
+    doc = JOBS[request.param]()
     diagnoses = [diagnose(rec) for rec in doc["circuits"]]
-    pdf = sheet_pdf(doc, diagnoses, PEOPLE)
+    laid_out = sheet_document(doc, diagnoses, PEOPLE)
+    pdf = laid_out.write_pdf()
     pages = [page.extract_text() for page in pypdf.PdfReader(io.BytesIO(pdf)).pages]
-    return doc, diagnoses, pdf, pages
+    return doc, diagnoses, pdf, pages, laid_out
+
+
+def page_boxes(page):
+    """Every box laid out in a page's content area (not its margin boxes: header, footer)."""
+    stack = list(page._page_box.children)
+    while stack:
+        box = stack.pop()
+        if isinstance(box, boxes.MarginBox):
+            continue
+        yield box
+        stack.extend(getattr(box, "children", None) or [])
+
+
+def classes(box) -> set[str]:
+    element = getattr(box, "element", None)
+    return set((element.get("class") or "").split()) if element is not None else set()
 
 
 def test_is_a_pdf_on_a4_pages(printed):
-    _, _, pdf, _ = printed
+    pdf = printed[2]
     assert pdf.startswith(b"%PDF-")
     for page in pypdf.PdfReader(io.BytesIO(pdf)).pages:
         box = page.mediabox
@@ -53,7 +100,7 @@ def test_is_a_pdf_on_a4_pages(printed):
 
 
 def test_holds_circuits_readings_and_verdicts(printed):
-    doc, diagnoses, _, pages = printed
+    doc, diagnoses, _, pages, _ = printed
     text = "\n".join(pages)
     flat = " ".join(text.split())
     assert doc["job"]["reference"] in flat and doc["job"]["site"] in flat
@@ -71,13 +118,80 @@ def test_holds_circuits_readings_and_verdicts(printed):
 
 
 def test_every_page_has_cautions_and_its_number(printed):
-    _, _, _, pages = printed
+    pages = printed[3]
     for number, text in enumerate(pages, start=1):
         flat = " ".join(text.split())
         assert f"Page {number} of {len(pages)}" in flat
         assert "Advice, not a certificate." in flat
         for caution in CAUTIONS:
             assert " ".join(caution.split()) in flat
+
+
+def test_nothing_prints_past_the_page_margins(printed):
+    laid_out = printed[4]
+    for number, page in enumerate(laid_out.pages, start=1):
+        frame = page._page_box
+        left, top = frame.margin_left, frame.margin_top
+        right, bottom = page.width - frame.margin_right, page.height - frame.margin_bottom
+        for box in page_boxes(page):
+            x, y = box.border_box_x(), box.border_box_y()
+            where = (number, type(box).__name__, classes(box))
+            assert left - 0.5 <= x and x + box.border_width() <= right + 0.5, where
+            assert top - 0.5 <= y and y + box.border_height() <= bottom + 0.5, where
+
+
+def test_schedule_rows_are_never_split_and_every_page_has_its_header(printed):
+    doc, _, _, _, laid_out = printed
+    pages_of_row: dict[int, set[int]] = {}
+    schedule_pages = set()
+    for number, page in enumerate(laid_out.pages, start=1):
+        for table in page_boxes(page):
+            if not (isinstance(table, boxes.TableBox) and "schedule" in classes(table)):
+                continue
+            schedule_pages.add(number)
+            groups = table.children
+            assert groups[0].is_header, f"page {number}: schedule without its header row"
+            for group in groups[1:]:
+                for row in group.children:
+                    pages_of_row.setdefault(id(row.element), set()).add(number)
+    outlets = sum(len(rec["outlets"]) for rec in doc["circuits"])
+    assert len(pages_of_row) == outlets
+    assert all(len(on) == 1 for on in pages_of_row.values())
+    if outlets >= LONG_RING_OUTLETS:
+        # the long ring's schedule really does run over a page break
+        assert len(schedule_pages) >= 2
+
+
+def drawn_numbers(picture) -> dict[str, set[str]]:
+    """Per label, the numbers its symbols carry in the ring picture (ring and key)."""
+    drawn: dict[str, set[str]] = {}
+    for group in BeautifulSoup(str(picture), "html.parser").find_all("g"):
+        title, text = group.find("title"), group.find("text")
+        if title is not None and text is not None:
+            drawn.setdefault(title.get_text(), set()).add(text.get_text())
+    return drawn
+
+
+def test_outlets_carry_the_ring_pictures_numbers(printed):
+    doc, diagnoses, _, pages, _ = printed
+    ctx = sheet_context(doc, diagnoses, PEOPLE)
+    flat = " ".join(" ".join(pages).split())
+    for c, diagnosis in zip(ctx["circuits"], diagnoses, strict=True):
+        numbers = {o["id"]: o["n"] for o in c["outlets"]}
+        assert sorted(numbers.values()) == list(range(1, len(numbers) + 1))
+        assert [k["n"] for k in c["key"]] == sorted(numbers.values())
+        # the printed sketch and the review page's picture (with its own key) alike
+        for picture in (c["sketch"], c["picture"]):
+            drawn = drawn_numbers(picture)
+            for o in c["outlets"]:
+                assert drawn[o["label"] or o["id"]] == {str(o["n"])}, o["id"]
+        for o, rec in zip(c["outlets"], doc["circuits"][c["index"] - 1]["outlets"], strict=True):
+            if rec["spur_from"]:
+                assert o["fed"].startswith(f"spur from No. {numbers[rec['spur_from']]} ")
+        for finding, words in zip(diagnosis["findings"], c["findings"], strict=True):
+            for oid in finding["outlets"]:
+                assert f"No. {numbers[oid]} ({oid})" in words["outlets"]
+        assert f"{c['index']}. {c['reference']}" in flat  # the overview on page 1
 
 
 def test_zs_over_the_limit_prints_fail_in_words():
@@ -92,7 +206,9 @@ def test_zs_over_the_limit_prints_fail_in_words():
     assert ctx["circuits"][0]["summary"]["result"] == "FAIL"
     failing = sum(o["result"] == "FAIL" for c in ctx["circuits"] for o in c["outlets"])
     assert failing >= len(doc["circuits"][0]["outlets"])
-    assert sheet_html(doc, diagnoses, PEOPLE).count('class="fail">FAIL<') == failing
+    circuits_failing = sum(c["summary"]["result"] == "FAIL" for c in ctx["circuits"])
+    assert sheet_html(doc, diagnoses, PEOPLE).count('class="fail">FAIL<') == (
+        failing + circuits_failing)
 
 
 def test_worked_example_values_on_the_sheet():
@@ -142,3 +258,46 @@ def test_diagnoses_must_match_the_circuits():
     doc = as_job_document(HANDMADE)
     with pytest.raises(ValueError, match="diagnoses: 1 given for 2 circuits"):
         sheet_context(doc, [None], {})
+
+
+def test_a_reading_taken_without_a_band_is_not_called_missing():
+    # r2 is OL end to end, so step 3 has no expected (r1 + r2) / 4 to be checked against
+    # (three-step ring test, common practice): the step 3 readings were taken all the same.
+    doc = as_job_document(DEMOS["03-open-cpc.json"])
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    circuit = sheet_context(doc, diagnoses, PEOPLE)["circuits"][0]
+    assert {o["le_check"] for o in circuit["outlets"]} == {"no band"}
+    assert {o["ln_check"] for o in circuit["outlets"]} == {"in band"}
+    assert circuit["expected"]["le_known"] is False
+    html = sheet_html(doc, diagnoses, PEOPLE)
+    assert "not known until r1 and r2 are in" in html and "expected about —" not in html
+
+
+def test_an_outlet_over_its_limit_fails_the_circuit_even_without_a_circuit_zs():
+    doc = as_job_document(HANDMADE)
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    part_done = sheet_context(doc, diagnoses, PEOPLE)["circuits"][1]
+    by_id = {o["id"]: o for o in part_done["outlets"]}
+    assert part_done["summary"]["zs"] == "—"
+    assert by_id["b"]["result"] == "FAIL" and by_id["b"]["named"] == "FAULT"
+    assert by_id["a"]["result"] == "not proved"
+    assert part_done["summary"]["result"] == "FAIL"
+    assert part_done["zs_line"] == f"over the limit or open at No. {by_id['b']['n']}"
+    # the safety ticks are printed as recorded: locked off was not ticked on this circuit
+    assert dict(part_done["details"])["Isolated / locked off / proved dead"] == "yes / NO / yes"
+
+
+def test_a_zs_pass_on_a_faulty_ring_says_it_covers_zs_only():
+    doc = as_job_document(DEMOS["02-bridged-ring.json"])
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    bridged = sheet_context(doc, diagnoses, PEOPLE)["circuits"][0]
+    assert bridged["verdict"] == "Investigate" and bridged["summary"]["result"] == "pass"
+    assert "not satisfactory until the findings below are resolved" in bridged["zs_only"]
+    assert bridged["zs_only"] in sheet_html(doc, diagnoses, PEOPLE)
+    # a record without its safety block: the sheet says so rather than printing NO
+    del doc["circuits"][0]["circuit"]["safety"]
+    unknown = sheet_context(doc, diagnoses, PEOPLE)["circuits"][0]
+    assert dict(unknown["details"])["Isolated / locked off / proved dead"] == "not recorded"
+    healthy = as_job_document(DEMOS["01-healthy-ring-with-spurs.json"])
+    sound = sheet_context(healthy, [diagnose(r) for r in healthy["circuits"]], PEOPLE)
+    assert sound["circuits"][0]["zs_only"] == ""
