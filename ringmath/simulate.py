@@ -75,7 +75,7 @@ def _meter(rng: np.random.Generator, true_ohm: float, gain: float) -> float | st
 def _ids(n: int, rng: np.random.Generator) -> list[str]:
     letters = "abcdefghijklmnopqrstuvwxyz"
     names = [letters[i % 26] + ("" if i < 26 else str(i // 26)) for i in range(n)]
-    return list(rng.permutation(names))
+    return [str(name) for name in rng.permutation(names)]
 
 
 def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | None = None,
