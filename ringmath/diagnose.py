@@ -41,7 +41,8 @@ def _combine(prep: Prepared, fits: list[Fit], n: int) -> list[tuple[float, Fit, 
 
 
 def _posterior(prep: Prepared, fit: Fit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Each ring outlet's most probable position (ring fraction) and the posterior spread.
+    """Each ring outlet's posterior over the grid, its most probable place (ring fraction,
+    the centre of the highest mode) and the posterior spread.
 
     The most probable place rather than the mean: on a broken or bridged ring a reading often
     fits two places (one each side of the fault), and the mean would fall between them.
@@ -50,7 +51,21 @@ def _posterior(prep: Prepared, fit: Fit) -> tuple[np.ndarray, np.ndarray, np.nda
     t = t_grid(post.shape[1])
     mean = post @ t
     sd = np.sqrt(np.maximum(post @ (t * t) - mean**2, 0.0))
-    return post, t[np.argmax(post, axis=1)], sd
+    return post, np.array([_mode_centre(row, t) for row in post]), sd
+
+
+def _mode_centre(row: np.ndarray, t: np.ndarray) -> float:
+    """Centre of the posterior's highest mode: the mean over the run of grid points around
+    the peak that stay above half the peak (a flat stretch gives its middle, not a random
+    point of it)."""
+    peak = int(np.argmax(row))
+    lo = hi = peak
+    while lo > 0 and row[lo - 1] >= 0.5 * row[peak]:
+        lo -= 1
+    while hi < len(row) - 1 and row[hi + 1] >= 0.5 * row[peak]:
+        hi += 1
+    w = row[lo:hi + 1]
+    return float(np.sum(w * t[lo:hi + 1]) / np.sum(w))
 
 
 def _neighbours(prep: Prepared, post: np.ndarray, x: float) -> list[str]:
