@@ -20,6 +20,14 @@ VERDICT_WORDS = {
     "incomplete": "Not finished",
 }
 SEVERITY_WORDS = {"fault": "Fault", "warning": "Check", "info": "Note"}
+#: What to do about a reading out of band, before trusting it (common practice: a reading
+#: is re-taken before it is believed; a poor probe contact is the usual cause).
+RETRY_WORDS = {
+    "open": "Check that the probes touch the terminals and the joins at the board are tight, "
+            "then measure again.",
+    "high": "Press the probes firmly onto the terminals and measure again.",
+    "low": "Check that the probes are on the right terminals and measure again.",
+}
 
 
 def ohm(value, places: int = 2) -> str:
@@ -57,11 +65,12 @@ def feedback(diagnosis: dict | None, field: str, key: str | None) -> dict | None
     deviation = entry.get("deviation_ohm")
     parts = []
     if expected is not None:
-        band = f" (band {ohm(low)} to {ohm(high)})" if low is not None and high is not None else ""
+        band = (f" ({low:.2f} to {high:.2f} Ω)" if low is not None and high is not None
+                else "")
         parts.append(f"Expected about {ohm(expected)}{band}.")
     if deviation is not None and status != "pending":
         direction = "above" if deviation > 0 else "below"
-        parts.append(f"{ohm(abs(deviation))} {direction} expected." if deviation else
+        parts.append(f"This is {ohm(abs(deviation))} {direction}." if deviation else
                      "Exactly as expected.")
     return {
         "status": status,
@@ -71,24 +80,40 @@ def feedback(diagnosis: dict | None, field: str, key: str | None) -> dict | None
         "high_ohm": high,
         "deviation_ohm": deviation,
         "text": " ".join(parts),
+        "retry": RETRY_WORDS.get(status, ""),
         "ok": status == "ok",
         "alert": status in ("high", "low", "open"),
+        "pending": status == "pending",
     }
 
 
+def lead_finding(findings: list[dict]) -> dict | None:
+    """The finding the answer leads with: the first fault (the one the summary names), else
+    the first warning. A note (severity "info") never leads: it is listed with the others."""
+    for severity in ("fault", "warning"):
+        top = next((f for f in findings if f.get("severity") == severity), None)
+        if top is not None:
+            return top
+    return None
+
+
 def leading(diagnosis: dict | None) -> dict | None:
-    """The current leading statement: verdict, summary and the first (most likely) finding."""
+    """The current leading statement: verdict, summary and the finding it rests on.
+
+    ``where`` lists the finding's outlets that its message does not already name as
+    "Label (id)", so the page does not say the same place twice."""
     if not diagnosis:
         return None
-    findings = diagnosis.get("findings") or []
-    top = findings[0] if findings else None
+    top = lead_finding(diagnosis.get("findings") or [])
     verdict = diagnosis.get("verdict") or "incomplete"
+    message = (top or {}).get("message") or ""
     return {
         "verdict": verdict,
         "verdict_words": VERDICT_WORDS.get(verdict, verdict),
         "summary": diagnosis.get("summary") or "",
         "finding": top,
         "severity_words": SEVERITY_WORDS.get(top["severity"], "") if top else "",
+        "where": [o for o in (top or {}).get("outlets") or [] if f"({o})" not in message],
     }
 
 

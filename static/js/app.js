@@ -53,7 +53,11 @@
     var card = form.closest(".reading");
     if (card) {
       var value = card.querySelector("[data-value]");
-      if (value) { value.textContent = reply.value === "OL" ? "OL" : Number(reply.value).toFixed(2) + " Ω"; }
+      if (value) {
+        value.textContent = reply.value === "OL" ? "OL" : Number(reply.value).toFixed(2) + " Ω";
+        var line = value.closest(".now");
+        if (line) { line.hidden = false; }
+      }
       var feedback = card.querySelector("[data-feedback]");
       if (feedback && reply.html) { feedback.innerHTML = reply.html.feedback; }
       card.classList.remove("pending");

@@ -353,7 +353,7 @@ def test_list_filters_search_and_flags(app, make_circuit, supervisor, parse):
     # Ze 0.95 + R1+R2 about 0.35 > 1.10 Ω, the measured-value limit for 32 A type B
     # (BS 7671:2018 Table 41.3, 80 % rule of thumb)
     assert "Zs over limit" in rows["T-2"] and "no flags" not in rows["T-2"]
-    assert "2 steps missing" in rows["T-3"]
+    assert "2 readings still due" in rows["T-3"]
     order = [li.find("strong").text for li in parse(supervisor.get("/review/")).select(
         "li.job-row")]
     assert order.index("T-3") > max(order.index("T-1"), order.index("T-2"))  # waiting first
