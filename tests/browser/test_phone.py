@@ -10,6 +10,7 @@ import re
 
 import pytest
 from playwright.sync_api import expect
+from seeds import ring_circuit
 
 pytestmark = pytest.mark.browser
 
@@ -31,11 +32,7 @@ def seed_circuit(live_app, *, safety=True, outlets=("Kitchen by door", "Lounge w
         "format": "ringtest/1",
         "job": {"reference": f"BT-{number:04d}", "site": f"{number} Quarry Row, Nantlle",
                 "client": "Invented Lettings", "date": "2026-11-30"},
-        "circuit": {"reference": "DB1/3", "description": "Ground floor sockets",
-                    "ocpd": {"standard": "BS EN 60898", "curve": "B", "rating_a": 32},
-                    "rcd": {"rated_ma": 30, "type": "A"}, "live_csa_mm2": 2.5,
-                    "cpc_csa_mm2": 1.5, "ze_ohm": 0.35, "ze_source": "measured",
-                    "earthing": "TN-C-S"},
+        "circuit": ring_circuit("DB1/3", "Ground floor sockets"),
         "end_to_end": {"r1": 0.52, "rn": 0.52, "r2": 0.86},
         "outlets": [{"id": chr(97 + i), "label": label, "kind": "twin_socket"}
                     for i, label in enumerate(outlets)],
