@@ -13,6 +13,7 @@ import threading
 from dataclasses import dataclass
 
 import pytest
+from playwright.sync_api import expect
 
 CHROMIUM = "/usr/bin/chromium"
 #: Flags this closed network needs (no background fetches, no GPU, no sandbox as root).
@@ -105,9 +106,15 @@ def browser_context_args(browser_context_args, live_app):
             "locale": "en-GB"}
 
 
+#: Generous waits: on a 2-core machine busy with the rest of the suite, a service-worker
+#: reload can take a few seconds; a wait that is too short fails a sound test.
+WAIT_MS = 15_000
+expect.set_options(timeout=WAIT_MS)
+
+
 @pytest.fixture
 def page(page):
-    page.set_default_timeout(8000)
+    page.set_default_timeout(WAIT_MS)
     return page
 
 
