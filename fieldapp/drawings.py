@@ -642,12 +642,10 @@ def ring_picture(diagnosis: dict, *, key: bool = True) -> Markup:
 
     y = max(_CY + _R + 40, lowest + 24)
     if fault and key:
-        lines, y = _wrapped(12, y, "Suspected: " + str(fault.get("message") or fault.get(
-            "code", "")), 50, weight="bold", fill=ALERT)
+        # the headline only: the full finding and what to check next sit beside the picture
+        headline = diagnosis.get("summary") or fault.get("message") or fault.get("code", "")
+        lines, y = _wrapped(12, y, "Suspected: " + str(headline), 50, weight="bold", fill=ALERT)
         body += lines
-        if fault.get("next_check"):
-            lines, y = _wrapped(12, y, "Next: " + str(fault["next_check"]), 52)
-            body += lines
         y += 8
     if key:
         rows, y = _key(ring + spurs, numbers, suspects, y + 6)
