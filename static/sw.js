@@ -11,7 +11,7 @@
  */
 "use strict";
 
-const VERSION = "ringcheck-v3";
+const VERSION = "ringcheck-v4";
 const SHELL_CACHE = VERSION + "-shell";
 const PAGE_CACHE = VERSION + "-pages";
 const OFFLINE_PAGE = "/static/offline.html";

@@ -158,6 +158,26 @@
     return pair && pair[1] ? pair[1] : null;
   }
 
+  /* Offline there is no diagnosis, but the page carries the band the server last gave for
+   * this reading (data-low / data-high on its card): say at once whether the value is in it. */
+  function bandNote(form, fields) {
+    var card = form.closest("[data-low][data-high]");
+    if (!card) return "";
+    var low = parseFloat(card.getAttribute("data-low"));
+    var high = parseFloat(card.getAttribute("data-high"));
+    var get = function (name) {
+      var pair = fields.find(function (f) { return f[0] === name; });
+      return pair ? pair[1] : "";
+    };
+    var band = low.toFixed(2) + " to " + high.toFixed(2) + " Ω";
+    if (get("ol")) return " OL where " + band + " was expected: check the probe contact and the board joins.";
+    var value = parseFloat(String(get("value")).replace(",", "."));
+    if (!isFinite(value) || !isFinite(low) || !isFinite(high)) return "";
+    if (value < low) return " Below the expected " + band + ": check before moving on.";
+    if (value > high) return " Above the expected " + band + ": check before moving on.";
+    return " Within the expected " + band + ".";
+  }
+
   function queueForm(form, fields) {
     var clientId = clientIdOf(fields);
     if (!clientId) {
@@ -172,7 +192,8 @@
     // the next reading from this form is a new write with its own key
     var clientField = form.querySelector("input[name='client_id']");
     if (clientField) clientField.value = newClientId();
-    noteOnForm(form, "Saved on this phone: " + label + ". It will be sent when back online.");
+    noteOnForm(form, "Saved on this phone: " + label + ". It will be sent when back online." +
+      bandNote(form, fields));
     showQueued(label, count);
   }
 

@@ -241,6 +241,10 @@ def test_reading_saved_offline_is_sent_once_when_back_online(apprentice, live_ap
     status = page.locator("#offline-status")
     expect(status).to_contain_text("Saved on this phone, will send when back online")
     expect(status).to_contain_text("L–N at outlet a = 0.27")
+    # no server to ask, but the card carries the band the server gave: (0.52+0.52)/4 = 0.26 Ω,
+    # ±0.05 Ω (common practice)
+    expect(card(page, "r-ln-a").locator(".offline-note")).to_contain_text(
+        "Within the expected 0.21 to 0.31 Ω")
     assert page.evaluate("window.ringtestOffline.pending()") == 1
     assert writes_with(live_app, client_id) == 0
     assert outlet_reading(live_app, circuit_id, "a") is None
