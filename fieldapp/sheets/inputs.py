@@ -6,33 +6,9 @@ circuit (or None with the reason why not) and the people and dates of the job.
 
 from __future__ import annotations
 
-import copy
-import functools
-import json
-
 from fieldapp import records
-from fieldapp.models import Circuit, Job
+from fieldapp.models import Job
 from fieldapp.transfer.documents import export_document
-from ringmath.diagnose import diagnose
-
-
-@functools.lru_cache(maxsize=512)
-def _diagnose_text(record_json: str) -> dict:
-    return diagnose(json.loads(record_json))
-
-
-def diagnosis_of(circuit: Circuit) -> tuple[dict | None, str | None]:
-    """(diagnosis, None), or (None, reason) when ringmath cannot assess the record.
-
-    The supervisor's list diagnoses every circuit of every job on each view, so results are
-    kept per distinct record (a changed reading is a different record); callers get a copy.
-    """
-    record = records.circuit_record(circuit, with_job=False)
-    try:
-        result = _diagnose_text(json.dumps(record, sort_keys=True))
-    except ValueError as error:
-        return None, f"The record cannot be assessed yet: {error}"
-    return copy.deepcopy(result), None
 
 
 def _name(user) -> str | None:
@@ -55,7 +31,7 @@ def job_people(job: Job) -> dict:
 
 def job_diagnoses(job: Job) -> tuple[list, list]:
     """(diagnoses, problems): one of each per circuit, in the job's order."""
-    results = [diagnosis_of(circuit) for circuit in job.circuits]
+    results = [records.diagnose_circuit(circuit) for circuit in job.circuits]
     return [diagnosis for diagnosis, _ in results], [problem for _, problem in results]
 
 
