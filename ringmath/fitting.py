@@ -167,6 +167,14 @@ def _position_sd(theta_pos: np.ndarray, ll: np.ndarray) -> float:
     return float(np.sqrt(np.sum(w * (theta_pos - mean) ** 2)))
 
 
+def _canonical_bridge(rows: np.ndarray) -> np.ndarray:
+    """Bridge rows (a, b, fraction) kept to b > a (by at least 0.02) and a + b <= 1 (the half
+    of the ring searched; the mirror image explains the readings equally)."""
+    rows = rows.copy()
+    rows[:, 1] = np.minimum(np.maximum(rows[:, 1], rows[:, 0] + 0.02), 1.0 - rows[:, 0])
+    return rows
+
+
 def fit_bridge(prep: Prepared) -> Fit:
     """An interconnection: a cable joining ring positions a < b in all three conductors, of
     resistance ``fraction`` x the ring's resistance (same cable). 3 parameters."""
@@ -174,15 +182,11 @@ def fit_bridge(prep: Prepared) -> Fit:
     ll, *_ = _bridge_eval(prep, grid, G_COARSE)
 
     def evaluate(rows):
-        rows = rows.copy()
-        rows[:, 1] = np.maximum(rows[:, 1], rows[:, 0] + 0.02)
-        rows[:, 1] = np.minimum(rows[:, 1], 1.0 - rows[:, 0])
-        return _bridge_eval(prep, rows, G_COARSE)[0]
+        return _bridge_eval(prep, _canonical_bridge(rows), G_COARSE)[0]
 
     theta, lls = _refine(evaluate, grid, ll, np.array([1 / 24, 1 / 24, -0.5]),
                          [0.005, 0.02, 0.002], [0.49, 0.995, 3.0])
-    best = theta[int(np.argmax(lls))]
-    best[1] = min(max(best[1], best[0] + 0.02), 1.0 - best[0])
+    best = _canonical_bridge(theta[int(np.argmax(lls))][None])[0]
     llb, ln, le, ring = _bridge_eval(prep, best[None], G_FINE)
     # spread over the uniform starting grid only (the refinement samples are not uniform)
     sd = max(_position_sd(grid[:, 0], ll), _position_sd(grid[:, 1], ll))

@@ -131,7 +131,7 @@ def reading_loglik(x: np.ndarray, mu: np.ndarray) -> np.ndarray:
     fin = taken & ~x_ol & ~mu_ol
     if np.any(fin):
         m = mu[fin]
-        sig = np.hypot(meter.SIGMA_FLOOR_OHM, meter.SIGMA_RELATIVE * m)
+        sig = meter.sigma_ohm(m)
         z = (x[fin] - m) / sig
         gauss = np.log1p(-P_OUTLIER) - 0.5 * z * z - np.log(sig * np.sqrt(2 * np.pi))
         out[fin] = np.logaddexp(gauss, LOG_OUTLIER)

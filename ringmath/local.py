@@ -83,31 +83,26 @@ def _best_fit(x: float) -> float:
     return float(reading_loglik(np.array(x), np.array(x))) + 0.05
 
 
-def _penalty(k: int, n: int, code: str) -> float:
-    return 0.5 * k * np.log(max(n, 2)) - np.log(LOCAL_PRIORS[code])
-
-
-def _ol_faults(outlet: str, ln: float, le: float, n: int) -> LocalFault | None:
+def _ol_faults(outlet: str, ln: float, le: float) -> LocalFault | None:
     pattern = (bool(np.isinf(ln)), bool(np.isinf(le)))
     if pattern not in OL_PATTERNS:
         return None
     (code, conductor, swap), tie = OL_PATTERNS[pattern]
     ratio = np.log1p(-P_OL_FALSE) - np.log(P_OL_FALSE)
-    gain = ratio * sum(pattern) - _penalty(0, n, code)
+    gain = ratio * sum(pattern) + np.log(LOCAL_PRIORS[code])
     return LocalFault(outlet, code, conductor, float(gain), None, swap, tie)
 
 
 def local_faults(prep: Prepared, fit: Fit) -> list[LocalFault]:
     """The outlets better explained by a local fault than as recorded under ``fit``; the best
     alternative per outlet, largest gain first."""
-    n = prep.n_readings()
     p_ln, p_le = fit.pred_ln, fit.pred_le
     base = outlet_loglik(prep, p_ln[None], p_le[None])[0]  # (n_ring, G)
     asis = log_mean_exp(base, axis=-1)
     found: list[LocalFault] = []
     for i, oid in enumerate(prep.ring_ids):
         ln, le = prep.ln_ohm[i], prep.le_ohm[i]
-        ol = _ol_faults(oid, ln, le, n)
+        ol = _ol_faults(oid, ln, le)
         if ol is not None:
             if ol.gain > 0:
                 found.append(ol)
@@ -144,7 +139,7 @@ def local_faults(prep: Prepared, fit: Fit) -> list[LocalFault]:
         if best is not None:
             found.append(best)
     for j, oid in enumerate(prep.child_ids):
-        ol = _ol_faults(oid, prep.child_ln_ohm[j], prep.child_le_ohm[j], n)
+        ol = _ol_faults(oid, prep.child_ln_ohm[j], prep.child_le_ohm[j])
         if ol is not None and ol.gain > 0:
             found.append(ol)
     return sorted(found, key=lambda f: f.gain, reverse=True)

@@ -11,6 +11,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 RESOLUTION_OHM = 0.01
 GAIN_TOLERANCE = 0.01
 OFFSET_OHM = 0.01
@@ -20,14 +22,17 @@ SIGMA_FLOOR_OHM = 0.012
 SIGMA_RELATIVE = 0.015
 
 
-def sigma_ohm(reading_ohm: float) -> float:
-    """Standard deviation in ohms assumed for a displayed reading of ``reading_ohm`` ohms.
+def sigma_ohm(reading_ohm):
+    """Standard deviation in ohms assumed for a displayed reading of ``reading_ohm`` ohms
+    (a float, or an array of them for the fits).
 
     sigma = sqrt(SIGMA_FLOOR_OHM**2 + (SIGMA_RELATIVE * reading)**2).
     """
-    if reading_ohm < 0:
+    value = np.asarray(reading_ohm, dtype=float)
+    if np.any(value < 0):
         raise ValueError(f"reading_ohm: {reading_ohm} is negative")
-    return math.hypot(SIGMA_FLOOR_OHM, SIGMA_RELATIVE * reading_ohm)
+    sigma = np.hypot(SIGMA_FLOOR_OHM, SIGMA_RELATIVE * value)
+    return float(sigma) if sigma.ndim == 0 else sigma
 
 
 def upper_bound_ohm(reading_ohm: float) -> float:

@@ -54,7 +54,7 @@ class Truth:
 @dataclass(frozen=True)
 class _Point:
     id: str
-    pos: float = 0.0          # ring fraction (ring points) or spur line resistance scale
+    pos: float = 0.0          # ring fraction from end 1 (ring points only)
     parent: str | None = None
     spur_m: float = 0.0       # spur cable length, metres
     spur_live: float = 2.5
@@ -62,7 +62,6 @@ class _Point:
     fuse_ohm: float = 0.0     # FCU fuse in the line, ohms
     kind: str = "twin_socket"
     fuse_a: float | None = None
-    recorded_parent: str | None = None
 
 
 def _meter(rng: np.random.Generator, true_ohm: float, gain: float) -> float | str:
@@ -157,8 +156,7 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
         ring = [p for p in ring if p.id != victim.id]
         anchor = f"jb{k}"
         ring.append(_Point(anchor, victim.pos, kind="junction_box"))
-        spurs.append(_Point(victim.id, parent=anchor, spur_m=float(rng.uniform(3, 10)),
-                            recorded_parent=None))
+        spurs.append(_Point(victim.id, parent=anchor, spur_m=float(rng.uniform(3, 10))))
         spurs = [s if s.parent != victim.id else _Point(
             s.id, parent=victim.id, spur_m=s.spur_m, kind=s.kind) for s in spurs]
         truth_outlets = (victim.id,)
