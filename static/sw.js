@@ -11,7 +11,7 @@
  */
 "use strict";
 
-const VERSION = "ringcheck-v4";
+const VERSION = "ringtest-v5";
 const SHELL_CACHE = VERSION + "-shell";
 const PAGE_CACHE = VERSION + "-pages";
 const OFFLINE_PAGE = "/static/offline.html";
@@ -40,7 +40,7 @@ self.addEventListener("activate", (event) => {
   event.waitUntil((async () => {
     const names = await caches.keys();
     await Promise.all(names
-      .filter((name) => name.startsWith("ringcheck-") && !name.startsWith(VERSION + "-"))
+      .filter((name) => name.startsWith("ringtest-") && !name.startsWith(VERSION + "-"))
       .map((name) => caches.delete(name)));
     await self.clients.claim();
   })());

@@ -14,8 +14,8 @@
 (function () {
   "use strict";
 
-  var OUTBOX = "ringcheck.outbox.v1";
-  var REJECTED = "ringcheck.outbox.rejected.v1";
+  var OUTBOX = "ringtest.outbox.v1";
+  var REJECTED = "ringtest.outbox.rejected.v1";
   var READING_FORMS = "form[data-offline], form[action$='/test/reading']";
   var NAMES = { r1: "r1", rn: "rn", r2: "r2", ln: "L–N", le: "L–CPC" };
   var replaying = false;
@@ -386,7 +386,7 @@
     if (replaying) return Promise.resolve();
     replaying = true;
     var run = navigator.locks && navigator.locks.request
-      ? navigator.locks.request("ringcheck-outbox", { ifAvailable: true }, function (lock) {
+      ? navigator.locks.request("ringtest-outbox", { ifAvailable: true }, function (lock) {
         return lock ? runReplay() : undefined;
       })
       : runReplay();

@@ -263,7 +263,7 @@ def test_reading_saved_offline_is_sent_once_when_back_online(apprentice, live_ap
         page.evaluate("""([id, url]) => {
           const item = {kind: "form", url: url, clientId: id, label: "again",
             fields: [["field", "ln"], ["outlet", "a"], ["value", "0.99"], ["client_id", id]]};
-          localStorage.setItem("ringcheck.outbox.v1", JSON.stringify([item]));
+          localStorage.setItem("ringtest.outbox.v1", JSON.stringify([item]));
           return window.ringtestOffline.replay();
         }""", [client_id, f"{live_app.url}/circuits/{circuit_id}/test/reading"])
     assert sent_again.value.status == 302  # accepted (as a repeat) and sent on to the page
@@ -348,7 +348,7 @@ def test_without_the_page_script_a_reading_form_still_queues_or_saves(page, cont
 def test_a_new_worker_deletes_the_caches_of_older_versions(page):
     page.goto("/static/offline.html")  # same origin, and registers no worker
     page.evaluate("""async () => {
-      await (await caches.open("ringcheck-v0-shell")).put("/old", new Response("old"));
+      await (await caches.open("ringtest-v0-shell")).put("/old", new Response("old"));
       await caches.open("someone-elses-cache");
     }""")
     page.goto("/login")
@@ -356,7 +356,7 @@ def test_a_new_worker_deletes_the_caches_of_older_versions(page):
     version = re.search(r'const VERSION = "([^"]+)"', page.evaluate(
         "fetch('/sw.js').then(r => r.text())")).group(1)
     names = page.evaluate("caches.keys()")
-    assert "ringcheck-v0-shell" not in names
+    assert "ringtest-v0-shell" not in names
     assert f"{version}-shell" in names and "someone-elses-cache" in names
     shell = page.evaluate(f"caches.open('{version}-shell').then(c => c.keys())"
                           ".then(keys => keys.map(k => new URL(k.url).pathname))")

@@ -111,7 +111,7 @@ def test_service_worker_shell_lists_files_that_exist():
 
 
 def test_service_worker_cache_names_are_versioned():
-    version = re.search(r'const VERSION = "(ringcheck-v\d+)";', SW)
+    version = re.search(r'const VERSION = "(ringtest-v\d+)";', SW)
     assert version
     assert 'VERSION + "-shell"' in SW and 'VERSION + "-pages"' in SW
     assert "caches.delete(name)" in SW  # old versions go on activate

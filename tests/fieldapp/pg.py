@@ -75,7 +75,7 @@ class PgCluster:
         return subprocess.run(cmd, check=True, capture_output=True, text=True, timeout=timeout)
 
     def start(self) -> PgCluster:
-        self.dir = Path(tempfile.mkdtemp(prefix="ringcheck-pg-", dir="/tmp"))
+        self.dir = Path(tempfile.mkdtemp(prefix="ringtest-pg-", dir="/tmp"))
         if self.as_postgres:
             pw = pwd.getpwnam("postgres")
             os.chown(self.dir, pw.pw_uid, pw.pw_gid)
