@@ -7,21 +7,19 @@ SECRET_KEY) and may be overridden by the ``config`` mapping (tests pass their ow
 from __future__ import annotations
 
 import importlib
-import importlib.util
 import os
 from pathlib import Path
 
-from flask import Flask, abort, redirect, render_template, send_from_directory, url_for
+from flask import Flask, redirect, render_template, send_from_directory, url_for
 from flask_wtf.csrf import CSRFError
-from werkzeug.routing import BuildError
 
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
 
 ROOT = Path(__file__).resolve().parent.parent
 #: Blueprints built in this package; optional ones are registered when their module exists.
-BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api")
-OPTIONAL_BLUEPRINTS = ("fieldapp.review", "fieldapp.sheets", "fieldapp.transfer")
+BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api",
+              "fieldapp.review", "fieldapp.sheets", "fieldapp.transfer")
 
 
 def create_app(config: dict | None = None) -> Flask:
@@ -51,23 +49,8 @@ def create_app(config: dict | None = None) -> Flask:
 
     for name in BLUEPRINTS:
         app.register_blueprint(importlib.import_module(name).bp)
-    for name in OPTIONAL_BLUEPRINTS:
-        if importlib.util.find_spec(name) is not None:
-            module = importlib.import_module(name)
-            blueprint = getattr(module, "bp", None)
-            if blueprint is not None:
-                app.register_blueprint(blueprint)
-
     _register_pages(app)
     return app
-
-
-def _url_if(endpoint: str, **values) -> str | None:
-    """url_for, or None when the endpoint is not there (blueprints that are optional)."""
-    try:
-        return url_for(endpoint, **values)
-    except BuildError:
-        return None
 
 
 def _register_pages(app: Flask) -> None:
@@ -79,8 +62,6 @@ def _register_pages(app: Flask) -> None:
 
     @app.get("/sw.js")
     def service_worker():
-        if not (Path(app.static_folder) / "sw.js").exists():
-            abort(404)
         response = send_from_directory(app.static_folder, "sw.js", max_age=0)
         response.headers["Service-Worker-Allowed"] = "/"
         response.headers["Cache-Control"] = "no-cache"
@@ -89,9 +70,6 @@ def _register_pages(app: Flask) -> None:
     @app.context_processor
     def page_globals():
         return {
-            "has_offline_js": (Path(app.static_folder) / "js" / "offline.js").exists(),
-            "has_endpoint": lambda endpoint: endpoint in app.view_functions,
-            "url_if": _url_if,
             "can_test": can_test,
         }
 
