@@ -7,14 +7,12 @@ hand ringmath.diagnose's plain values to the templates.
 
 from __future__ import annotations
 
-import importlib
-
 from flask import abort, flash, redirect, render_template, request, url_for
 from flask_login import login_required
 from markupsafe import Markup
 from sqlalchemy import select
 
-from fieldapp import changes
+from fieldapp import changes, drawings
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
 from fieldapp.extensions import db
 from fieldapp.models import STEPS, Circuit, Outlet, User, utcnow
@@ -76,18 +74,6 @@ def ohm_filter(value, places: int = 2) -> str:
 def named_filter(ids, names: dict | None) -> str:
     """Outlet ids as "a · Kitchen, c · Hall" (ids alone where the name is unknown)."""
     return ", ".join((names or {}).get(i, str(i)) for i in ids or ())
-
-
-def drawing(name: str, *args) -> Markup:
-    """SVG from fieldapp.drawings, or nothing while that module is not there."""
-    try:
-        module = importlib.import_module("fieldapp.drawings")
-    except ImportError:
-        return Markup("")
-    function = getattr(module, name, None)
-    if function is None:
-        return Markup("")
-    return Markup(function(*args))
 
 
 def _circuit(circuit_id: int) -> Circuit:
@@ -178,7 +164,7 @@ def render_step(circuit: Circuit, step: str, *, bad: ReadingForm | None = None,
         or (pending and pending["anchor"]),
         leading=fb.leading(diagnosis), diagnosis_error=diagnosis_error,
         expected=(diagnosis or {}).get("expected"),
-        diagram=drawing("connection_diagram", step), outlet_form=outlet_form,
+        diagram=drawings.connection_diagram(step), outlet_form=outlet_form,
         next_form=ActionForm(formdata=None), next_step=following,
         next_info=STEP_INFO[following], writable=_writable(circuit),
         safe=changes.safety_confirmed(circuit), names=fb.outlet_names(diagnosis),
@@ -449,8 +435,8 @@ def results(circuit_id: int):
         diagnosis_error=diagnosis_error, leading=fb.leading(diagnosis), names=names,
         stepper=_stepper(circuit, "results"), info=STEP_INFO["results"],
         cautions=(diagnosis or {}).get("cautions") or FALLBACK_CAUTIONS,
-        ring_svg=drawing("ring_picture", diagnosis) if diagnosis else Markup(""),
-        plot_svg=drawing("readings_plot", diagnosis) if diagnosis else Markup(""),
+        ring_svg=drawings.ring_picture(diagnosis) if diagnosis else Markup(""),
+        plot_svg=drawings.readings_plot(diagnosis) if diagnosis else Markup(""),
         kind_labels=KIND_LABELS, safe=changes.safety_confirmed(circuit),
     )
 
