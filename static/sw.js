@@ -11,7 +11,7 @@
  */
 "use strict";
 
-const VERSION = "ringtest-v5";
+const VERSION = "ringtest-v6";
 const SHELL_CACHE = VERSION + "-shell";
 const PAGE_CACHE = VERSION + "-pages";
 const OFFLINE_PAGE = "/static/offline.html";
@@ -48,7 +48,7 @@ self.addEventListener("activate", (event) => {
 
 /* Messages from the pages:
  * - "keep-page" {url}: the page that was open when this worker took control went past it;
- *   fetch and keep it so that the first visit opens offline too;
+ *   fetch and keep it so that the first visit opens offline too (not the login page);
  * - "clear-pages" on logout, so the next user of a shared phone does not see the last one's
  *   jobs offline. */
 self.addEventListener("message", (event) => {
@@ -57,7 +57,9 @@ self.addEventListener("message", (event) => {
     event.waitUntil(caches.delete(PAGE_CACHE));
   } else if (data.type === "keep-page" && typeof data.url === "string") {
     const url = new URL(data.url, self.location.origin);
-    if (url.origin !== self.location.origin) return;
+    // Never fetch the login page behind the user's back: its response carries a session
+    // cookie that would overwrite the one the login itself is setting at the same moment.
+    if (url.origin !== self.location.origin || /\/login\/?$/.test(url.pathname)) return;
     url.hash = "";
     event.waitUntil(keepPage(url.href).catch(() => undefined));
   }

@@ -427,7 +427,7 @@
    * worker takes over, ask it to keep this page for offline use. */
   function keepThisPage() {
     var sw = navigator.serviceWorker;
-    if (!sw || sw.controller) return;
+    if (!sw || sw.controller || isLoginPage(window.location.href)) return;
     sw.addEventListener("controllerchange", function () {
       if (sw.controller) sw.controller.postMessage({ type: "keep-page", url: window.location.href });
     }, { once: true });
