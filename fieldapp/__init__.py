@@ -13,6 +13,7 @@ from pathlib import Path
 from flask import Flask, redirect, render_template, send_from_directory, url_for
 from flask_wtf.csrf import CSRFError
 
+from fieldapp import background
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
 
@@ -41,6 +42,7 @@ def create_app(config: dict | None = None) -> Flask:
         app.config["SECRET_KEY"] = app_config.secret_key(app.instance_path)
 
     db.init_app(app)
+    background.init_app(app)
     csrf.init_app(app)
     login_manager.init_app(app)
     login_manager.login_view = "auth.login"

@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+from flask import current_app
+
+from fieldapp import background, diagnoses
 from fieldapp.changes import live_outlets
-from fieldapp.diagnoses import diagnosis_for
 from fieldapp.models import Circuit, Job
 from ringmath import FORMAT
 
@@ -85,6 +87,21 @@ def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
     """
     record = circuit_record(circuit, with_job=False)  # the job block plays no part
     try:
-        return diagnosis_for(record), None
+        return diagnoses.diagnosis_for(record), None
     except ValueError as error:
         return None, f"The record cannot be diagnosed yet: {error}"
+
+
+def diagnosis_or_instant(circuit: Circuit) -> tuple[dict | None, bool]:
+    """What a save answers with: (full diagnosis, False) when it is stored already or the app
+    diagnoses inline; else (the instant checks, True) with the circuit queued for the
+    background thread, so the save does not wait for the fit."""
+    queue = background.queue(current_app)
+    if queue is None:
+        return diagnose_circuit(circuit)[0], False
+    record = circuit_record(circuit, with_job=False)
+    done = diagnoses.stored(record)
+    if done is not None:
+        return done, False
+    queue.submit(circuit.id)
+    return diagnoses.instant(record), True
