@@ -98,9 +98,6 @@ def reading_message(error: ValueError, raw=None) -> str:
     kind = error_kind(error)
     shown = f"“{str(raw).strip()}”" if raw not in (None, "") else "That"
     number = _number(raw)
-    if number is not None and not math.isfinite(number):
-        return (f"{shown} is not a finite number. Type the meter reading in ohms, e.g. 0.52, "
-                "or tap OL if the meter shows OL.")
     if kind == "range":
         if number is not None and number < 0:
             return "A resistance cannot be negative. Check the reading and the meter's leads."
