@@ -54,6 +54,13 @@ class Background:
                 self._thread.start()
             self._cond.notify()
 
+    def ensure(self, circuit_id: int) -> None:
+        """Queue the circuit unless it already waits (a poll must not push a save's turn back)."""
+        with self._cond:
+            waiting = circuit_id in self._due
+        if not waiting:
+            self.submit(circuit_id)
+
     def pending(self, circuit_id: int) -> bool:
         with self._cond:
             return circuit_id in self._due

@@ -92,10 +92,11 @@ def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
         return None, f"The record cannot be diagnosed yet: {error}"
 
 
-def diagnosis_or_instant(circuit: Circuit) -> tuple[dict | None, bool]:
+def diagnosis_or_instant(circuit: Circuit, *, saved: bool = True) -> tuple[dict | None, bool]:
     """What a save answers with: (full diagnosis, False) when it is stored already or the app
     diagnoses inline; else (the instant checks, True) with the circuit queued for the
-    background thread, so the save does not wait for the fit."""
+    background thread, so the save does not wait for the fit. ``saved=False`` (a poll) queues
+    the circuit only if it is not waiting already."""
     queue = background.queue(current_app)
     if queue is None:
         return diagnose_circuit(circuit)[0], False
@@ -103,5 +104,5 @@ def diagnosis_or_instant(circuit: Circuit) -> tuple[dict | None, bool]:
     done = diagnoses.stored(record)
     if done is not None:
         return done, False
-    queue.submit(circuit.id)
+    (queue.submit if saved else queue.ensure)(circuit.id)
     return diagnoses.instant(record), True

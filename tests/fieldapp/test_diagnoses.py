@@ -205,3 +205,46 @@ def test_one_failing_circuit_does_not_stop_the_thread(bg_app, monkeypatch):
 def test_an_unknown_mode_is_refused_naming_the_setting(make_app, mode):
     with pytest.raises(ValueError, match="DIAGNOSIS_MODE"):
         make_app(DIAGNOSIS_MODE=mode)
+
+
+def test_the_api_save_does_not_wait_and_the_poll_brings_the_diagnosis(bg_app, login):
+    import time
+
+    from fieldapp import background
+
+    circuit_id = _bg_circuit(bg_app)
+    client = bg_app.test_client()
+    login(client, "test")
+    outlet = client.get(f"/api/circuits/{circuit_id}").get_json()["record"]["outlets"][0]["id"]
+    assert background.queue(bg_app).wait_idle(30)  # the GET above diagnosed inline: stored
+    reply = client.post(f"/api/circuits/{circuit_id}/readings",
+                        json={"step": "le", "outlet": outlet, "value": "0.36",
+                              "client_id": "bg-save-0001"})
+    body = reply.get_json()
+    assert reply.status_code == 200 and body["stored"]
+    assert body["diagnosis_pending"] is True and body["leading"] is None
+    assert body["feedback"]["expected_ohm"] is not None  # the instant check is there
+    assert 'data-poll="' + body["diagnosis_url"] + '"' in body["html"]["leading"]
+    deadline = time.monotonic() + 30
+    while True:
+        poll = client.get(body["diagnosis_url"])
+        if poll.status_code == 200 or time.monotonic() > deadline:
+            break
+        assert poll.status_code == 202 and poll.get_json()["pending"] is True
+        time.sleep(0.05)
+    assert poll.status_code == 200
+    data = poll.get_json()
+    assert data["leading"]["verdict"] in ("satisfactory", "investigate", "retest", "incomplete")
+    assert "data-poll" not in data["html"]["leading"]
+
+
+def test_inline_mode_answers_a_save_with_the_full_diagnosis(tester, make_circuit):
+    circuit_id = make_circuit(e2e=RING, outlets=OUTLETS)
+    outlet = tester.get(f"/api/circuits/{circuit_id}").get_json()["record"]["outlets"][1]["id"]
+    body = tester.post(f"/api/circuits/{circuit_id}/readings",
+                       json={"step": "le", "outlet": outlet, "value": "0.35",
+                             "client_id": "inline-0001"}).get_json()
+    assert body["diagnosis_pending"] is False and body["diagnosis_url"] is None
+    assert body["leading"]["verdict"]
+    poll = tester.get(f"/api/circuits/{circuit_id}/diagnosis")
+    assert poll.status_code == 200 and poll.get_json()["leading"] == body["leading"]
