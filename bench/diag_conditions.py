@@ -54,6 +54,8 @@ CONDITIONS = (
     Condition("warm4", "cable 4 % warmer for steps 2–3", lambda rng: Nuisance(warm=0.04)),
     Condition("worn", "1–4 worn sockets, 0.1–0.6 Ω, read from the front (set-up error)",
               lambda rng: Nuisance(worn=int(rng.integers(1, 5)))),
+    Condition("worn_remeasured", "1–4 worn sockets, re-measured at the terminals",
+              lambda rng: Nuisance(worn=int(rng.integers(1, 5)), remeasure=True)),
     Condition("metallic", "metallic cpc (steel conduit, in parallel or alone), declared",
               lambda rng: Nuisance(metallic_cpc=("parallel", "instead")[int(rng.integers(0, 2))])),
     Condition("metallic_undeclared", "metallic cpc, not declared on the record",

@@ -60,7 +60,7 @@ def must_report(truth) -> set[str]:
     out = set()
     if abs(n.lead_ohm) > LEAD_TOLERATED_OHM + 1e-9:
         out.add("lead")
-    if truth.worn_ohm:
+    if truth.worn_ohm and not n.remeasure:
         out.add("contacts")
     if abs(n.meter_scale - 1.0) > 0.1:
         out.add("instrument")
@@ -73,6 +73,8 @@ def present(truth) -> set[str]:
     if n is None:
         return set()
     out = must_report(truth)
+    if truth.worn_ohm:
+        out.add("contacts")
     if abs(n.lead_ohm) >= 0.02:
         out.add("lead")
     if n.warm >= 0.01 or abs(n.meter_scale - 1.0) > 0.1:
@@ -165,6 +167,8 @@ def score(result: dict, truth, record: dict, hand: bool) -> dict:
         "wiring_call_80": any((f["confidence"] or 0) >= 0.8 for f in calls),
         "named": named,
         "metallic": truth.conduit is not None,
+        "worn": bool(truth.worn_ohm),
+        "worn_placed": _worn_placed(result, truth),
         "metallic_named": any(f["code"] in METALLIC_CODES for f in result["findings"]),
         "right": bool(faults) and (any(hit) or (bool(setup) and named)),
         "right_all": bool(faults) and all(hit),
@@ -174,6 +178,13 @@ def score(result: dict, truth, record: dict, hand: bool) -> dict:
         "claim": None if claim is None else (claim["confidence"], claim_correct(claim, truth)),
         "sound": sound_claim(result) if claim is None else None,
     }
+
+
+def _worn_placed(result: dict, truth) -> bool:
+    """A socket-contacts finding names the worn outlets (one either way)."""
+    f = next((f for f in result["findings"] if setup_kind(f["code"]) == "contacts"), None)
+    got, want = set(f["outlets"]) if f else set(), set(truth.worn_ohm)
+    return bool(got) and len(got ^ want) <= 1
 
 
 def calibration(claims: list[tuple[float, bool]]) -> tuple[list[tuple], float | None]:
@@ -193,7 +204,8 @@ def calibration(claims: list[tuple[float, bool]]) -> tuple[list[tuple], float | 
 
 def hand_rule(record: dict) -> bool:
     """True when the common hand rule flags the ring: any OL, r1 and rn more than 0.05 Ω
-    apart, or a ring outlet more than 0.05 Ω from (r1+rn)/4 or (r1+r2)/4 (common practice)."""
+    apart, or a ring outlet more than 0.05 Ω from (r1+rn)/4 or (r1+r2)/4 (common practice).
+    A re-measure at the terminals replaces the front reading."""
     e = record["end_to_end"]
     vals = [e["r1"], e["rn"], e["r2"]]
     if any(v == "OL" for v in vals):
@@ -203,9 +215,10 @@ def hand_rule(record: dict) -> bool:
         return True
     ln_exp, le_exp = (r1 + rn) / 4, (r1 + r2) / 4
     for o in record["outlets"]:
-        if o["ln"] == "OL" or o["le"] == "OL":
+        ln = o["ln_terminals"] if o.get("ln_terminals") is not None else o["ln"]
+        le = o["le_terminals"] if o.get("le_terminals") is not None else o["le"]
+        if ln == "OL" or le == "OL":
             return True
-        if o["spur_from"] is None and (abs(o["ln"] - ln_exp) > 0.05
-                                       or abs(o["le"] - le_exp) > 0.05):
+        if o["spur_from"] is None and (abs(ln - ln_exp) > 0.05 or abs(le - le_exp) > 0.05):
             return True
     return False

@@ -90,6 +90,9 @@ def print_condition(cond: Condition, rows: list[dict], seconds: float) -> dict:
         print(f"  healthy rings with a set-up error ({len(setup)}): named {pct(setup, 'named')};"
               f" wiring fault named {pct(setup, 'wiring_call')}, at >= 80 %"
               f" {pct(setup, 'wiring_call_80')} (hand rule flags {pct(setup, 'hand')})")
+    worn = [r for r in rows if r["worn"]]
+    if worn:
+        print(f"  worn sockets named at the right outlets {pct(worn, 'worn_placed')}")
     metal = [r for r in rows if r["metallic"]]
     if metal:
         print(f"  metallic cpc named (parallel path / metallic code)"
@@ -141,8 +144,10 @@ def print_summary(summary: list[dict], rows: list[dict]) -> None:
              + [(r["sound"], not r["faulty"]) for r in rows if r["sound"] is not None])):
         table, brier = calibration(claims)
         unscored = sum(1 for r in rows if r["claim"] and r["claim"][1] is None)
+        certain = sum(1 for c, _ok in claims if c >= 0.995)
         print(f"\n  calibration, all conditions, {title} ({len(claims)} claims,"
-              f" {unscored} unscored codes); Brier {'n/a' if brier is None else f'{brier:.3f}'}")
+              f" {unscored} unscored codes, {certain} stated at 100 %);"
+              f" Brier {'n/a' if brier is None else f'{brier:.3f}'}")
         print(f"  {'stated':>10} {'count':>7} {'mean stated':>12} {'observed':>9}")
         for lo, hi, cnt, mean, obs in table:
             label = f"{int(100 * lo)}-{min(int(100 * hi), 100)} %"

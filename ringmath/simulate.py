@@ -20,8 +20,24 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ringmath.conductors import resistance_mohm_per_m
-from ringmath.simulate_net import Conduit, Point, Wiring, edges, reading_ohm, signal_ohm
-from ringmath.simulate_nuisance import Nuisance, contact_noise, draw_conduit, draw_worn, shown
+from ringmath.simulate_net import (
+    Conduit,
+    Point,
+    Wiring,
+    edges,
+    reading_ohm,
+    signal_ohm,
+    true_readings,
+)
+from ringmath.simulate_nuisance import (
+    SOCKET_KINDS,
+    Nuisance,
+    contact_noise,
+    draw_conduit,
+    draw_worn,
+    front_marks,
+    shown,
+)
 
 FAULT_CODES = (
     "interconnection",
@@ -32,7 +48,6 @@ FAULT_CODES = (
     "high_resistance_joint",
 )
 _BY_NAME = {"line": "L", "neutral": "N", "cpc": "E"}
-_SOCKETS = ("twin_socket", "single_socket")
 
 
 @dataclass(frozen=True)
@@ -202,7 +217,7 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
     visible = [p for p in ring if not p.id.startswith("jb")] + spurs
     keys = [("e2e", c, None) for c in "LNE"] + [
         (s, s, p.id) for p in visible for s in ("ln", "le")]
-    true = _true_readings(wiring, keys)
+    true = true_readings(wiring, keys)
     gain = float(rng.uniform(-0.01, 0.01))
     digits = [float(rng.uniform(-0.008, 0.008)) if math.isfinite(t) and t <= 199 else None
               for t in true]
@@ -213,13 +228,13 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
     if nuisance is not None:
         if n.metallic_cpc:
             wiring = replace(wiring, conduit=draw_conduit(rng, n.metallic_cpc))
-        sockets = [p.id for p in visible if p.kind in _SOCKETS]
+        sockets = [p.id for p in visible if p.kind in SOCKET_KINDS]
         contacts = draw_worn(rng, n, sockets) if n.worn else {}
         noise = contact_noise(rng, len(keys), n.contact_sd_ohm, n.contact_tail) \
             if n.contact_sd_ohm else np.zeros(len(keys))
         if n.metallic_cpc:
-            true = _true_readings(wiring, keys)
-        site = _true_readings(wiring, keys, warm=n.warm, contacts=contacts) \
+            true = true_readings(wiring, keys)
+        site = true_readings(wiring, keys, warm=n.warm, contacts=contacts) \
             if (n.warm or contacts) else true
         worn = {oid: (site[keys.index(("ln", "ln", oid))] - true[keys.index(("ln", "ln", oid))],
                       site[keys.index(("le", "le", oid))] - true[keys.index(("le", "le", oid))])
@@ -235,7 +250,16 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
         if digits[i] is None and math.isfinite(loop) and loop <= 199:
             digits[i] = float(rng.uniform(-0.008, 0.008))  # read now, OL without the nuisance
         values.append(shown(loop, gain=gain, digit_ohm=digits[i] or 0.0, ideal=ideal_meter))
-    fronts = _front_marks(n, visible, worn)
+    fronts = front_marks(n, {p.id: p.kind for p in visible}, worn)
+    terminals: dict = {}
+    if worn and n.remeasure:  # the worn outlets read again at their terminals, same leads
+        again = [k for k in keys if k[2] in worn]
+        extra = contact_noise(rng, len(again), n.contact_sd_ohm, n.contact_tail)
+        for (kind, _c, oid), t, e in zip(again, true_readings(wiring, again, warm=n.warm),
+                                         extra, strict=True):
+            loop = (t + n.lead_on(kind) + float(e)) * n.meter_scale
+            terminals.setdefault(oid, {})[f"{kind}_terminals"] = shown(
+                loop, gain=gain, digit_ohm=float(rng.uniform(-0.008, 0.008)), ideal=ideal_meter)
     outlets = []
     for j, p in enumerate(visible):
         recorded_parent = p.parent if p.parent and not p.parent.startswith("jb") else None
@@ -243,6 +267,7 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
              "fuse_a": p.fuse_a, "ln": values[3 + 2 * j], "le": values[4 + 2 * j]}
         if p.id in fronts:
             o["taken_at"] = fronts[p.id]
+        o.update(terminals.get(p.id, {}))
         outlets.append(o)
     circuit = {"ocpd": {"standard": "BS EN 60898", "curve": "B", "rating_a": 32},
                "live_csa_mm2": 2.5, "cpc_csa_mm2": 1.5, "ze_ohm": ze, "ze_source": "measured",
@@ -263,32 +288,3 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
                                              if p.parent is None or p.parent.startswith("jb")},
                           cable_cpc=wiring.conduit is None))
     return record, truth
-
-
-def _true_readings(wiring: Wiring, keys, warm: float = 0.0, contacts=None) -> list[float]:
-    """True resistance of every reading in ``keys`` order (e2e: no warming, no contacts)."""
-    wired = edges(wiring)
-    steps = {"ln": "ln_wrong" if wiring.wrong == "ln" else "ln",
-             "le": "le_wrong" if wiring.wrong == "le" else "le"}
-    out = []
-    for kind, c, oid in keys:
-        if kind == "e2e":
-            out.append(reading_ohm(wiring, f"e2e:{c}", wired=wired))
-            continue
-        pins = (contacts or {}).get(oid)
-        contact = None if pins is None else (pins[0], pins[1] if kind == "ln" else pins[2])
-        out.append(reading_ohm(wiring, steps[kind], oid, warm=warm, contact_ohm=contact,
-                               wired=wired))
-    return out
-
-
-def _front_marks(n: Nuisance, visible, worn: dict) -> dict[str, str]:
-    """The outlets the record marks as read from the socket front (plug-in lead)."""
-    mode = n.front_marks
-    if mode == "auto":
-        mode = "sockets" if n.worn else "none"
-    if mode == "none":
-        return {}
-    if mode == "worn":
-        return {oid: "front" for oid in worn}
-    return {p.id: ("front" if p.kind in _SOCKETS else "terminals") for p in visible}

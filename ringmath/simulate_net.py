@@ -227,3 +227,22 @@ def signal_ohm(true: list[float], keys, ring_ids: set, cable_cpc: bool) -> float
         lo, hi = r1 * other / (r1 + other), (r1 + other) / 4
         worst = max(worst, lo - value, value - hi)
     return float(worst)
+
+
+def true_readings(wiring: Wiring, keys, warm: float = 0.0, contacts=None) -> list[float]:
+    """True resistance in ohms of every reading in ``keys`` order: ("e2e", "L" | "N" | "E",
+    None) for step 1, ("ln" | "le", _, outlet id) for steps 2–3 (crossed ends where the wiring
+    has them). warm and contacts (outlet id -> line, neutral, cpc pin ohms) act on steps 2–3."""
+    wired = edges(wiring)
+    steps = {"ln": "ln_wrong" if wiring.wrong == "ln" else "ln",
+             "le": "le_wrong" if wiring.wrong == "le" else "le"}
+    out = []
+    for kind, c, oid in keys:
+        if kind == "e2e":
+            out.append(reading_ohm(wiring, f"e2e:{c}", wired=wired))
+            continue
+        pins = (contacts or {}).get(oid)
+        contact = None if pins is None else (pins[0], pins[1] if kind == "ln" else pins[2])
+        out.append(reading_ohm(wiring, steps[kind], oid, warm=warm, contact_ohm=contact,
+                               wired=wired))
+    return out

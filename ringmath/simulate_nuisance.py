@@ -34,6 +34,7 @@ LEAD_STEPS = (None, "e2e", "ln", "le")
 TAILS = ("normal", "t3")
 FRONT_MARKS = ("auto", "sockets", "worn", "none")
 METALLIC = (None, "parallel", "instead")
+SOCKET_KINDS = ("twin_socket", "single_socket")
 #: Steel conduit resistance along the run, ohms per metre (order of magnitude from memory for
 #: 20 mm steel conduit with its couplings; it only needs to be far below a 1.5 mm² core).
 CONDUIT_OHM_PER_M = (0.001, 0.005)
@@ -46,7 +47,8 @@ class Nuisance:
     Ohms for ``contact_sd_ohm``, ``lead_ohm`` and ``worn_ohm``; ``warm`` a fraction (0.02 =
     2 % warmer); ``meter_scale`` a factor (1 = a suitable instrument). front_marks: which
     outlets the record marks ``taken_at: "front"``: "auto" (every socket when any is worn),
-    "sockets", "worn" (only the worn ones) or "none".
+    "sockets", "worn" (only the worn ones) or "none". remeasure: the worn outlets are read
+    again at their terminals (``ln_terminals`` / ``le_terminals`` on the record).
     """
 
     contact_sd_ohm: float = 0.0
@@ -60,6 +62,7 @@ class Nuisance:
     metallic_cpc: str | None = None
     cpc_declared: bool = True
     meter_scale: float = 1.0
+    remeasure: bool = False
 
     def __post_init__(self):
         checks = (
@@ -93,7 +96,8 @@ class Nuisance:
         if self.warm:
             out.append(f"{100 * self.warm:.1f} % warmer")
         if self.worn:
-            out.append(f"{self.worn} worn sockets")
+            out.append(f"{self.worn} worn sockets"
+                       + (", re-measured at the terminals" if self.remeasure else ""))
         if self.metallic_cpc:
             out.append(f"metallic cpc {self.metallic_cpc}"
                        + ("" if self.cpc_declared else " undeclared"))
@@ -162,3 +166,17 @@ def shown(true_ohm: float, *, gain: float, digit_ohm: float, ideal: bool = False
     if ideal:
         return max(true_ohm, 0.0)
     return round(max(true_ohm * (1 + gain) + digit_ohm, 0.0), 2)
+
+
+def front_marks(n: Nuisance, kinds: dict[str, str], worn) -> dict[str, str]:
+    """The outlets (id -> kind) the record marks as read from the socket front (plug-in lead)
+    or at the terminals; ``worn``: the worn outlets' ids."""
+    mode = n.front_marks
+    if mode == "auto":
+        mode = "sockets" if n.worn else "none"
+    if mode == "none":
+        return {}
+    if mode == "worn":
+        return {oid: "front" for oid in worn}
+    return {oid: ("front" if kind in SOCKET_KINDS else "terminals")
+            for oid, kind in kinds.items()}

@@ -125,6 +125,26 @@ def test_worn_socket_contacts_add_to_those_outlets_only():
     for ln_extra, le_extra in truth.worn_ohm.values():
         assert 0.05 <= ln_extra <= 0.9 and 0.05 <= le_extra <= 0.9
     assert "taken_at" not in clean["outlets"][0]
+    parsed = parse_record(worn)  # the record format carries where each reading was taken
+    assert [o.taken_at for o in parsed.outlets] == [o["taken_at"] for o in worn["outlets"]]
+
+
+def test_a_re_measure_at_the_terminals_reads_without_the_socket_contacts():
+    clean, _ = _sim(7, None, ideal_meter=True, nuisance=Nuisance(lead_ohm=0.03))
+    again, truth = _sim(7, None, ideal_meter=True,
+                        nuisance=Nuisance(lead_ohm=0.03, worn=3, remeasure=True))
+    by_id = {o["id"]: o for o in clean["outlets"]}
+    for o in again["outlets"]:
+        if o["id"] in truth.worn_ohm:
+            # same leads, no socket contacts: the clean reading; the front one kept beside it
+            assert o["ln_terminals"] == pytest.approx(by_id[o["id"]]["ln"], abs=1e-9)
+            assert o["le_terminals"] == pytest.approx(by_id[o["id"]]["le"], abs=1e-9)
+            assert o["ln"] > o["ln_terminals"] + 0.05
+        else:
+            assert "ln_terminals" not in o
+    parsed = {o.id: o for o in parse_record(again).outlets}
+    worn_id = next(iter(truth.worn_ohm))
+    assert parsed[worn_id].ln_used_ohm == pytest.approx(by_id[worn_id]["ln"], abs=1e-9)
 
 
 def test_a_contact_resistance_in_the_netlist_adds_in_series():
@@ -157,6 +177,8 @@ def test_a_metallic_cpc_reads_far_below_the_cable_and_is_declared(mode):
     assert record["circuit"]["cpc_kind"] == "conduit"
     assert record["circuit"]["parallel_paths"] is (mode == "parallel")
     assert truth.conduit.replaces_cpc is (mode == "instead")
+    circuit = parse_record(record).circuit
+    assert (circuit.cpc_kind, circuit.parallel_paths) == ("conduit", mode == "parallel")
     hidden, _ = _sim(2, None, nuisance=Nuisance(metallic_cpc=mode, cpc_declared=False))
     assert "cpc_kind" not in hidden["circuit"]
 
