@@ -36,9 +36,10 @@ MISSING_STEP_CAP = 0.85
 #: A best explanation needing this many independent faults is doubted as a whole.
 MANY_FAULTS = 3
 #: Findings that doubt the readings themselves: they lead, and the verdict is "retest".
-LEADING_CODES = frozenset({"instrument_inconsistent", "readings_inconsistent"})
+LEADING_CODES = frozenset({"setup_instrument", "setup_readings_inconsistent"})
 #: Set-up findings that call for a re-test when no credible fault stands.
-RETEST_CODES = frozenset({"lead_offset", "step_offset", "socket_contact", "end_to_end_zero"})
+RETEST_CODES = frozenset({"setup_lead_offset", "setup_lead_offset_step", "setup_socket_contacts",
+                          "end_to_end_zero"})
 
 
 def _posterior(prep: Prepared, fit: Fit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -146,12 +147,12 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
         if found is not None:
             findings.insert(0, found)
     independent = (best_fit.code != "healthy") + sum(
-        lf.code != "socket_contact" for lf in best.local)
+        lf.code != "setup_socket_contacts" for lf in best.local)
     if independent >= MANY_FAULTS:
         codes = ([best_fit.code] if best_fit.code != "healthy" else []) + [
-            lf.code for lf in best.local if lf.code != "socket_contact"]
+            lf.code for lf in best.local if lf.code != "setup_socket_contacts"]
         msg, nxt = setup_messages.many_faults(independent, codes)
-        findings = [Finding("readings_inconsistent", "warning", msg, nxt,
+        findings = [Finding("setup_readings_inconsistent", "warning", msg, nxt,
                             confidence=_cap(float(weights[0]), prep))] + [
             replace(f, severity="warning" if f.severity == "fault" else f.severity,
                     confidence=None if f.confidence is None else f.confidence / 2)

@@ -27,6 +27,7 @@ from ringmath.likelihood import (
     per_scatter_loglik,
     reading_loglik,
     scatter_estimate,
+    search_index,
     t_grid,
 )
 from ringmath.network import CONDUCTOR_INDEX, Layout, step_resistance
@@ -34,6 +35,8 @@ from ringmath.nodal import SHORT_OHM
 
 G_FINE = 64
 G_COARSE = 20
+#: Positions for the bridge's first uniform grid (about 200 candidates), before refinement.
+G_GRID = 14
 #: Prior probabilities of each explanation (our working figures: most rings are sound).
 PRIORS = {
     "healthy": 0.70,
@@ -129,8 +132,10 @@ def _final(prep: Prepared, ln: np.ndarray, le: np.ndarray, cons) -> tuple[float,
     return top + float(np.log(np.sum(np.exp(per_s - top)))), scatter_estimate(per_s)
 
 
-def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int) -> tuple[np.ndarray, ...]:
-    """theta: (T, 3) rows of (a, b, fraction). Returns loglik (T,), ln, le (T, g), ring (T, 3)."""
+def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int,
+                 s_index: int | None = None) -> tuple[np.ndarray, ...]:
+    """theta: (T, 3) rows of (a, b, fraction). Returns loglik (T,), ln, le (T, g), ring (T, 3);
+    s_index: search at one contact sd (``marginal_loglik``)."""
     n = theta.shape[0]
     ends = np.concatenate([theta[:, :1], theta[:, :2]], axis=1)  # probe parked at a
     unit = step_resistance(_BRIDGE, "e2e:line", ends, np.ones((n, 3)),
@@ -142,7 +147,7 @@ def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int) -> tuple[np.ndarray,
     ln, le = _steps(_BRIDGE, marks, rings, extra=extra)
     ln, le = ln.reshape(n, g), le.reshape(n, g)
     cons = e2e_consistency(prep.e2e_ohm, prep)
-    return marginal_loglik(prep, ln, le, cons), ln, le, ring
+    return marginal_loglik(prep, ln, le, cons, s_index), ln, le, ring
 
 
 def _bridge_grid() -> np.ndarray:
@@ -197,14 +202,15 @@ def _canonical_bridge(rows: np.ndarray) -> np.ndarray:
     return rows
 
 
-def fit_bridge(prep: Prepared) -> Fit:
+def fit_bridge(prep: Prepared, s_index: int | None = None) -> Fit:
     """An interconnection: a cable joining ring positions a < b in all three conductors, of
-    resistance ``fraction`` x the ring's resistance (same cable). 3 parameters."""
+    resistance ``fraction`` x the ring's resistance (same cable). 3 parameters. The search
+    runs at contact sd ``s_index`` (None: integrated); the best fit is scored integrated."""
     grid = _bridge_grid()
-    ll, *_ = _bridge_eval(prep, grid, G_COARSE)
+    ll, *_ = _bridge_eval(prep, grid, G_GRID, s_index)
 
     def evaluate(rows):
-        return _bridge_eval(prep, _canonical_bridge(rows), G_COARSE)[0]
+        return _bridge_eval(prep, _canonical_bridge(rows), G_COARSE, s_index)[0]
 
     theta, lls = _refine(evaluate, grid, ll, np.array([1 / 24, 1 / 24, -0.5]),
                          [0.005, 0.02, 0.002], [0.49, 0.995, 3.0])
@@ -221,8 +227,8 @@ def fit_bridge(prep: Prepared) -> Fit:
 
 
 def _series_eval(prep: Prepared, conductor: str, ring: np.ndarray, x: np.ndarray,
-                 series_value_s: float, g: int,
-                 cons) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                 series_value_s: float, g: int, cons,
+                 s_index: int | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """A series element of ``series_value_s`` siemens in one conductor at each position x;
     ``cons`` is step 1's term per contact sd."""
     n = x.shape[0]
@@ -232,16 +238,17 @@ def _series_eval(prep: Prepared, conductor: str, ring: np.ndarray, x: np.ndarray
     rings = np.tile(ring, (n * g, 1))
     ln, le = _steps(_SPLIT, marks, rings, series=series)
     ln, le = ln.reshape(n, g), le.reshape(n, g)
-    return marginal_loglik(prep, ln, le, cons), ln, le
+    return marginal_loglik(prep, ln, le, cons, s_index), ln, le
 
 
 def _fit_series(prep: Prepared, code: str, conductor: str, ring: np.ndarray,
-                series_s: float, cons: float, k: int, extra: dict) -> Fit:
+                series_s: float, cons, k: int, extra: dict, s_index: int | None) -> Fit:
     xs = (np.arange(24) + 0.5) / 48  # one half of the ring
-    ll, _, _ = _series_eval(prep, conductor, ring, xs, series_s, G_COARSE, cons)
+    ll, _, _ = _series_eval(prep, conductor, ring, xs, series_s, G_COARSE, cons, s_index)
 
     def evaluate(rows):
-        return _series_eval(prep, conductor, ring, rows[:, 0], series_s, G_COARSE, cons)[0]
+        return _series_eval(prep, conductor, ring, rows[:, 0], series_s, G_COARSE, cons,
+                            s_index)[0]
 
     theta, lls = _refine(evaluate, xs[:, None], ll, np.array([1 / 96]), [0.002], [0.5],
                          rounds=2)
@@ -255,7 +262,7 @@ def _fit_series(prep: Prepared, code: str, conductor: str, ring: np.ndarray,
                tuple(ring), ln[0], le[0], sd, occam, contact, _scatter_cons(cons))
 
 
-def fit_open(prep: Prepared, conductor: str) -> Fit | None:
+def fit_open(prep: Prepared, conductor: str, s_index: int | None = None) -> Fit | None:
     """A break in one ring conductor at an unknown position x (its end-to-end reading is OL).
 
     The broken conductor's cable resistance is taken from the others by the conductor table
@@ -274,10 +281,10 @@ def fit_open(prep: Prepared, conductor: str) -> Fit | None:
     ring[c] = float(np.mean([e2e[i] / ratio[i] for i in others])) * ratio[c]
     cons = e2e_consistency(np.where(np.isinf(e2e), np.nan, e2e), prep)
     cons += float(reading_loglik(np.array(np.inf), np.array(np.inf)))
-    return _fit_series(prep, "open_conductor", conductor, ring, 0.0, cons, 0, {})
+    return _fit_series(prep, "open_conductor", conductor, ring, 0.0, cons, 0, {}, s_index)
 
 
-def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
+def fit_joint(prep: Prepared, conductor: str, s_index: int | None = None) -> Fit | None:
     """A high-resistance joint J ohms in series in one ring conductor at position x.
 
     J is the conductor's end-to-end excess over what the other two conductors imply (line and
@@ -299,7 +306,7 @@ def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
     ring[c] = expected
     cons = e2e_consistency(ring, prep)
     return _fit_series(prep, "high_resistance_joint", conductor, ring, 1.0 / joint, cons, 1,
-                       {"r_ohm": joint})
+                       {"r_ohm": joint}, s_index)
 
 
 def fit_all(prep: Prepared) -> list[Fit]:
@@ -308,12 +315,17 @@ def fit_all(prep: Prepared) -> list[Fit]:
     if np.any(np.isnan(prep.e2e_ohm)) or np.any(prep.e2e_ohm <= 0):
         return []
     fits: list[Fit | None] = []
+    # parameter searches run at the contact sd the sound ring implies (every candidate then
+    # shares it); each best fit is then scored with the sd integrated
+    s_index = None
     if np.all(np.isfinite(prep.e2e_ohm)):
-        fits += [fit_healthy(prep), fit_healthy(prep, "ln"), fit_healthy(prep, "le"),
-                 fit_bridge(prep)]
+        healthy = fit_healthy(prep)
+        s_index = search_index(healthy.contact_sd)
+        fits += [healthy, fit_healthy(prep, "ln"), fit_healthy(prep, "le"),
+                 fit_bridge(prep, s_index)]
     for conductor in CONDUCTOR_INDEX:
-        fits.append(fit_open(prep, conductor))
-        fits.append(fit_joint(prep, conductor))
+        fits.append(fit_open(prep, conductor, s_index))
+        fits.append(fit_joint(prep, conductor, s_index))
     n = prep.n_readings()
     found = [f for f in fits if f is not None]
     return sorted(found, key=lambda f: f.score(n), reverse=True)

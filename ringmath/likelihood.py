@@ -163,23 +163,32 @@ def _where(outlet) -> str | None:
 def reading_loglik(x: np.ndarray, mu: np.ndarray, extra_sd=0.0) -> np.ndarray:
     """Log-likelihood of displayed readings ``x`` (ohms; nan = not taken -> 0; inf = OL)
     given model values ``mu`` (ohms; inf = open) and the ring's extra scatter ``extra_sd``
-    (ohms sd, added in quadrature to the meter's). Broadcasts."""
-    x, mu, extra = np.broadcast_arrays(np.asarray(x, dtype=float), np.asarray(mu, dtype=float),
-                                       np.asarray(extra_sd, dtype=float))
-    out = np.zeros(x.shape)
+    (ohms sd, added in quadrature to the meter's ``meter.sigma_ohm``). Broadcasts.
+
+    Computed on whole arrays (no masked copies): the Gaussian part is evaluated everywhere on
+    safe stand-in values and only kept where reading and model are both finite.
+    """
+    x = np.asarray(x, dtype=float)
+    mu = np.asarray(mu, dtype=float)
+    x_fin, mu_fin = np.isfinite(x), np.isfinite(mu)
+    fin = x_fin & mu_fin
+    xs = np.where(x_fin, x, 0.0)
+    ms = np.where(mu_fin, np.maximum(mu, 0.0), 0.0)
+    # sigma² = meter.sigma_ohm(mu)² + extra² (the meter formula written out for arrays)
+    var = (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * ms) ** 2
+           + np.asarray(extra_sd, dtype=float) ** 2)
+    gauss = _LOG_INLIER - 0.5 * (xs - ms) ** 2 / var - 0.5 * np.log(var)
+    mixed = np.logaddexp(gauss, LOG_OUTLIER)
+    if np.all(fin):
+        return mixed
     x_ol, mu_ol = np.isinf(x), np.isinf(mu)
     taken = ~np.isnan(x)
-    both = taken & x_ol & mu_ol
-    out[both] = np.log1p(-P_OL_FALSE)
-    out[taken & (x_ol != mu_ol)] = np.log(P_OL_FALSE)
-    fin = taken & ~x_ol & ~mu_ol
-    if np.any(fin):
-        m = mu[fin]
-        sig = np.hypot(meter.sigma_ohm(np.maximum(m, 0.0)), extra[fin])
-        z = (x[fin] - m) / sig
-        gauss = np.log1p(-P_OUTLIER) - 0.5 * z * z - np.log(sig * np.sqrt(2 * np.pi))
-        out[fin] = np.logaddexp(gauss, LOG_OUTLIER)
+    ol = np.where(x_ol & mu_ol, np.log1p(-P_OL_FALSE), np.log(P_OL_FALSE))
+    out = np.where(fin, mixed, np.where(taken & (x_ol | mu_ol), ol, 0.0))
     return out
+
+
+_LOG_INLIER = float(np.log1p(-P_OUTLIER) - 0.5 * np.log(2 * np.pi))
 
 
 def _profile_spur(d_ln: np.ndarray, d_le: np.ndarray, a_ln: float, a_le: float,
@@ -258,10 +267,24 @@ def per_scatter_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
 
 
 def marginal_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
-                    cons: np.ndarray | float = 0.0) -> np.ndarray:
+                    cons: np.ndarray | float = 0.0, s_index: int | None = None) -> np.ndarray:
     """(T,): the readings' log-likelihood with positions averaged and the ring's scatter
-    integrated over its grid (``per_scatter_loglik``, log-sum-exp over the sd axis)."""
-    return _logsumexp0(per_scatter_loglik(prep, pred_ln, pred_le, cons))
+    integrated over its grid (``per_scatter_loglik``, log-sum-exp over the sd axis).
+
+    s_index: use only that contact sd of the grid (a parameter search, where only the ranking
+    of the candidates matters; five times less work)."""
+    if s_index is None:
+        return _logsumexp0(per_scatter_loglik(prep, pred_ln, pred_le, cons))
+    sd = float(CONTACT_SD_OHM[s_index])
+    per = log_mean_exp(outlet_loglik(prep, pred_ln, pred_le, sd), axis=-1).sum(axis=-1)
+    c = np.asarray(cons, dtype=float)
+    c = c[s_index] if c.ndim else c
+    return per + c + LOG_CONTACT_PRIOR[s_index]
+
+
+def search_index(contact_sd: float) -> int:
+    """The grid index of the contact sd nearest ``contact_sd`` ohms."""
+    return int(np.argmin(np.abs(CONTACT_SD_OHM - contact_sd)))
 
 
 def _logsumexp0(a: np.ndarray) -> np.ndarray:

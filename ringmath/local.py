@@ -117,7 +117,8 @@ def _options(prep: Prepared) -> list[tuple]:
     for conductor, a_ln, a_le in (("line", 1.0, 1.0), ("neutral", 1.0, 0.0), ("cpc", 0.0, 1.0)):
         opts.append(("high_resistance_joint", conductor, a_ln, a_le, JOINT_RANGE_OHM,
                      np.full(n, np.log(LOCAL_PRIORS["high_resistance_joint"]))))
-        opts.append(("socket_contact", conductor, a_ln, a_le, CONTACT_RANGE_OHM, log_contact))
+        opts.append(("setup_socket_contacts", conductor, a_ln, a_le, CONTACT_RANGE_OHM,
+                     log_contact))
     return opts
 
 

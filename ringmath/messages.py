@@ -169,11 +169,11 @@ def headline(code: str, conductor: str | None = None, step: str | None = None,
         return f"Terminals look swapped{where}."
     if code == "zs_over_limit":
         return f"Zs is over the limit{where}."
-    if code == "socket_contact":
+    if code == "setup_socket_contacts":
         return f"Socket contacts read high{where}: re-measure at the terminals."
-    if code in ("lead_offset", "step_offset"):
+    if code in ("setup_lead_offset", "setup_lead_offset_step"):
         return "The readings look offset: null the leads and re-take them."
-    if code in ("instrument_inconsistent", "readings_inconsistent"):
+    if code in ("setup_instrument", "setup_readings_inconsistent"):
         return "These readings cannot all be true: check the test set-up or the instrument."
     return "A fault needs checking."
 

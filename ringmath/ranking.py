@@ -4,8 +4,8 @@ own set-up error, all on one score.
 A combination's score is the whole-ring fit's score (``Fit.score``) plus the gains of its
 outlet-level faults (``local``), plus the log prior of its set-up: "as read" (``P_NONE``) or
 the best set-up error (``setup_errors.fit_setup``), whose version of every hypothesis is fitted
-on the corrected readings and anchored so that its sound ring scores exactly the set-up's
-evidence. The normalised exp(score) over all combinations is the posterior used for every
+on the corrected readings, with the set-up's log prior, the Occam factor of its parameter and
+the Jacobian of the correction added. The normalised exp(score) over all combinations is the posterior used for every
 confidence: a finding's confidence adds the weight of every combination that contains it, so a
 set-up error that explains the readings nearly as well takes its share.
 """
@@ -63,10 +63,9 @@ def rank(prep: Prepared) -> tuple[list[Combo], np.ndarray]:
     if healthy is not None and setup is not None and setup.vs_none > SETUP_TRY_NATS:
         fixed = correct(prep, setup)
         fits2 = fit_all(fixed)
-        healthy2 = next((f for f in fits2 if f.code == "healthy"), None)
-        if healthy2 is not None:
-            evidence = healthy.loglik + np.log(P_NONE) + setup.vs_none
-            combos += _combos(fixed, fits2, n, evidence - healthy2.loglik, setup)
+        steps = int(sum(np.count_nonzero(np.isfinite(a)) for a in (
+            fixed.ln_ohm, fixed.le_ohm, fixed.child_ln_ohm, fixed.child_le_ohm)))
+        combos += _combos(fixed, fits2, n, setup.log_cost + setup.log_jacobian(steps), setup)
     combos.sort(key=lambda c: c.score, reverse=True)
     scores = np.array([c.score for c in combos])
     weights = np.exp(scores - scores.max())

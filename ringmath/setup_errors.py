@@ -49,8 +49,10 @@ GAIN_GRID = np.array([-0.06, -0.04, -0.02, 0.02, 0.04, 0.06, 0.08])
 #: Gross factors between step 1 and steps 2-3 that no wiring makes on every reading.
 SCALE_GRID = np.array([0.33, 0.4, 0.5, 0.6, 0.7, 0.8, 1.25, 1.4, 1.6, 1.8, 2.0, 2.25, 2.5,
                        3.0])
-#: Positions on which the sound ring is evaluated for the search.
-G_SETUP = 32
+#: Positions on which the sound ring is evaluated for the search, and the contact sd of the
+#: grid (likelihood.CONTACT_SD_OHM index) it is searched at.
+G_SETUP = 24
+SEARCH_S_INDEX = 1
 _PLAIN = Layout(1, (False,))
 
 
@@ -65,6 +67,11 @@ class Setup:
     gain: float = 0.0
     log_cost: float = 0.0
     vs_none: float = 0.0
+
+    def log_jacobian(self, n_step_readings: int) -> float:
+        """log |d reading / d true| summed over the step 2-3 readings: a gain g stretches
+        each by (1 + g), so a corrected reading's density is divided by it."""
+        return -n_step_readings * float(np.log1p(self.gain))
 
     def offsets(self) -> tuple[float, float, float]:
         """Offsets in ohms on step 1, step 2 and step 3 readings."""
@@ -107,7 +114,9 @@ def fit_setup(prep: Prepared) -> Setup | None:
     pred_ln = (1 + gain) * base_ln[which] + np.array([r[3] for r in rows])[:, None]
     pred_le = (1 + gain) * base_le[which] + np.array([r[4] for r in rows])[:, None]
     cons_d = np.stack([e2e_consistency(e2e - d, prep) for d in rings_d], axis=1)  # (S, D)
-    ll = marginal_loglik(prep, pred_ln, pred_le, cons_d[:, which])
+    # searched at one contact sd (the ranking of the candidates is what matters here; the
+    # diagnosis scores the chosen one with the sd integrated)
+    ll = marginal_loglik(prep, pred_ln, pred_le, cons_d[:, which], SEARCH_S_INDEX)
     kinds = np.array([r[0] for r in rows])
     none = float(ll[0]) + np.log(P_NONE)
     best: Setup | None = None
