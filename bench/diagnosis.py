@@ -25,7 +25,7 @@ outlet count and spacing, spurs and fused spurs, shuffled visiting order) and pr
   ``os.getloadavg()`` beside it.
 
 Run: ``.venv/bin/python bench/diagnosis.py [--quick] [--n N] [--healthy N] [--seed S]
-[--conditions clean,typical,...] [--list]``.
+[--conditions clean,typical,...] [--show CODE|healthy|setup] [--list]``.
 """
 
 from __future__ import annotations
@@ -59,7 +59,26 @@ def pct(rows: list[dict], key: str) -> str:
     return f"{100 * sum(r[key] for r in rows) / len(rows):5.1f} %" if rows else "   n/a "
 
 
-def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: int) -> list[dict]:
+def _judged_wrong(row: dict, show: str) -> bool:
+    if show == "healthy":
+        return not row["faulty"] and not row["setup"] and row["flagged"]
+    if show == "setup":
+        return row["setup"] and not (row["named"] if not row["faulty"] else row["right"])
+    return row["code"] == show and not row["right"]
+
+
+def _show(cond: Condition, truth, result: dict) -> None:
+    faults = [f"{f.code}{'/' + (f.conductor or f.step) if f.conductor or f.step else ''}"
+              f" {list(f.outlets)}" for f in truth.faults] or ["sound"]
+    said = [(f["code"], f["severity"], f["confidence"], f["outlets"])
+            for f in result["findings"][:3]]
+    labels = truth.nuisance.labels() if truth.nuisance else ()
+    print(f"    [{cond.key}] truth {'; '.join(faults)} (signal {truth.signal_ohm:.3f} Ω;"
+          f" {', '.join(labels) or 'clean'}) -> {result['verdict']}: {said}")
+
+
+def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: int,
+                  show: str | None = None) -> list[dict]:
     rows = []
     for code in [None] * healthy + [c for c in FAULT_CODES for _ in range(n)]:
         also = None
@@ -72,6 +91,8 @@ def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: in
         row = score(result, truth, record, hand_rule(record))
         row["ms"] = 1000 * (time.perf_counter() - t0)
         rows.append(row)
+        if show and _judged_wrong(row, show):
+            _show(cond, truth, result)
     return rows
 
 
@@ -176,6 +197,8 @@ def main() -> None:
     parser.add_argument("--conditions", default="", help="comma-separated condition keys")
     parser.add_argument("--quick", action="store_true", help="a few minutes on two cores")
     parser.add_argument("--list", action="store_true", help="list the conditions and stop")
+    parser.add_argument("--show", metavar="WHAT", help="print the cases judged wrong: a fault"
+                        " code, 'healthy' (false alarms) or 'setup' (set-up errors not named)")
     args = parser.parse_args()
     if args.list:
         for c in CONDITIONS:
@@ -194,7 +217,7 @@ def main() -> None:
     for key in keys:
         rng = np.random.default_rng([args.seed, list(BY_KEY).index(key)])
         t0 = time.perf_counter()
-        rows = run_condition(BY_KEY[key], rng, n, healthy)
+        rows = run_condition(BY_KEY[key], rng, n, healthy, args.show)
         summary.append(print_condition(BY_KEY[key], rows, time.perf_counter() - t0))
         every.extend(rows)
     print_summary(summary, every)
