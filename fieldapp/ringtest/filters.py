@@ -9,13 +9,14 @@ from markupsafe import Markup, escape
 from fieldapp import labels
 from fieldapp.records import diagnose_circuit
 from fieldapp.ringtest import bp
+from fieldapp.ringtest.text import STEP_BADGES
 
 log = logging.getLogger(__name__)
 
 
 @bp.app_template_filter("ohm")
-def ohm_filter(value, places: int = 2) -> str:
-    return labels.ohm(value, places)
+def ohm_filter(value, places: int = 2, unit: bool = True) -> str:
+    return labels.ohm(value, places, unit)
 
 
 @bp.app_template_filter("named")
@@ -48,3 +49,9 @@ def circuit_verdict(circuit) -> dict:
         return {"verdict": "none", "words": "Not assessed", "reason": reason}
     verdict = diagnosis.get("verdict") or "incomplete"
     return {"verdict": verdict, "words": labels.verdict_word(verdict), "reason": None}
+
+
+@bp.app_context_processor
+def step_words() -> dict:
+    """The step badges of circuit cards (the job page)."""
+    return {"step_badges": STEP_BADGES}

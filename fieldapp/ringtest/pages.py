@@ -16,7 +16,7 @@ from fieldapp.records import diagnose_circuit
 from fieldapp.ringtest import answer
 from fieldapp.ringtest import feedback as fb
 from fieldapp.ringtest.forms import ActionForm, OutletForm, ReadingForm
-from fieldapp.ringtest.text import E2E_READINGS, STEP_INFO
+from fieldapp.ringtest.text import E2E_READINGS, STEP_INFO, STEP_TERMS
 from fieldapp.web import get_or_404
 
 
@@ -100,6 +100,7 @@ def render_step(circuit: Circuit, step: str, *, bad: ReadingForm | None = None,
     return render_template(
         "ringtest/step.html", circuit=circuit, job=circuit.job, step=step,
         info=STEP_INFO[step], stepper=stepper(circuit, step), items=items,
+        step_terms=STEP_TERMS[step],
         focus=(bad and anchor_for(bad.field.data, bad.outlet.data or None))
         or (pending and pending["anchor"]),
         leading=answer.leading(diagnosis), diagnosis_error=diagnosis_error,
@@ -123,5 +124,5 @@ def render_results(circuit: Circuit):
         zs=state, tiles=answer.tiles(diagnosis, state) if diagnosis else [],
         ring_svg=drawings.ring_picture(diagnosis) if diagnosis else Markup(""),
         plot_svg=drawings.readings_plot(diagnosis) if diagnosis else Markup(""),
-        safe=changes.safety_confirmed(circuit),
+        safe=changes.safety_confirmed(circuit), severity_words=labels.SEVERITY_WORDS,
     )
