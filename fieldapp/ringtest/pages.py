@@ -81,9 +81,10 @@ def reading_items(circuit: Circuit, step: str, diagnosis: dict | None) -> list[d
 
 def render_step(circuit: Circuit, step: str, *, bad: ReadingForm | None = None,
                 slip: Slip | None = None, outlet_form: OutletForm | None = None,
-                status: int = 200):
+                at: str | None = None, status: int = 200):
     """The page of one reading step; ``bad`` is a submitted reading form with its errors and
-    ``slip`` the decimal-point question about it."""
+    ``slip`` the decimal-point question about it; ``at`` the card whose field takes the focus
+    (a new outlet's), else the first reading still due."""
     diagnosis, diagnosis_error = diagnose_circuit(circuit)
     items = reading_items(circuit, step, diagnosis)
     if bad is not None:
@@ -96,6 +97,8 @@ def render_step(circuit: Circuit, step: str, *, bad: ReadingForm | None = None,
     if outlet_form is not None:
         outlet_form.set_sources(changes.live_outlets(circuit))
     pending = next((i for i in items if i["value"] is None), None)
+    if at is not None:
+        pending = next((i for i in items if i["anchor"] == at), pending)
     following = STEPS[STEPS.index(step) + 1]
     return render_template(
         "ringtest/step.html", circuit=circuit, job=circuit.job, step=step,

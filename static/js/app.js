@@ -162,14 +162,17 @@
 
   document.addEventListener("DOMContentLoaded", function () {
     document.querySelectorAll("form").forEach(enhance);
-    // After "Add outlet" the page opens at the new outlet's card (#r-ln-c): its reading field
-    // takes the focus; otherwise the first reading still due does.
+    // The card the server marked (a new outlet's, or the first reading still due) takes the
+    // focus. A URL fragment (#r-ln-c) names a card too; the browser moves the focus to the
+    // fragment once the page has loaded, so that focus waits for the load.
     var target = location.hash && document.getElementById(location.hash.slice(1));
     if (target && target.classList.contains("reading")) {
-      focusNext(target.id);
+      window.addEventListener("load", function () {
+        window.setTimeout(function () { focusNext(target.id); }, 0);
+      });
     } else {
       var focused = document.querySelector(".reading.focus");
-      if (focused && !location.hash) { focusNext(focused.id); }
+      if (focused) { focusNext(focused.id); }
     }
     var sw = document.body.getAttribute("data-sw");
     if (sw && "serviceWorker" in navigator) {

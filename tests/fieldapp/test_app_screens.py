@@ -137,3 +137,17 @@ def test_no_inline_script_or_style(tester, make_circuit, app, url):
     assert not re.search(r"<script(?![^>]*\bsrc=)", html)
     assert " style=" not in html and "<style" not in html
     assert not re.search(r"\son[a-z]+=", html)  # no inline event handlers
+
+
+def test_a_new_outlet_takes_the_focus_without_the_page_script(tester, make_circuit, parse):
+    cid = make_circuit(e2e=E2E, outlets=[{"label": "Kitchen"}])  # a has no reading yet
+    response = tester.post(f"/circuits/{cid}/outlets?step=ln",
+                           data={"label": "Hall", "kind": "twin_socket", "spur_from_key": "",
+                                 "fuse_a": "", "spur_csa_mm2": "", "spur_cpc_csa_mm2": "",
+                                 "client_id": "pytest-add-focus", "submit": "Add outlet"})
+    assert response.status_code == 302
+    location = response.headers["Location"]
+    assert location.endswith("?at=r-ln-b") and "#" not in location  # a fragment steals focus
+    page = parse(tester.get(location))
+    focused = page.select("input[autofocus]")
+    assert [i["id"] for i in focused] == ["v-r-ln-b"]
