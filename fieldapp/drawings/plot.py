@@ -26,6 +26,7 @@ from fieldapp.drawings.svg import (
     _text,
     _wrapped,
 )
+from fieldapp.labels import reading_name
 
 _PLOT_LEFT, _PLOT_RIGHT = 50.0, WIDTH - 12.0
 _PANEL_HEIGHT = 130.0
@@ -85,7 +86,7 @@ def _ohms(value: float) -> str:
 def _panel(diagnosis: dict, step: str, top: float, ring: list[dict], spurs: list[dict],
            numbers: dict[str, str]) -> list[str]:
     """One step's panel: band, expected line, a marker per outlet, axes in ohms."""
-    field, name = ("ln_ohm", "L–N") if step == "ln" else ("le_ohm", "L–CPC")
+    field, name = f"{step}_ohm", reading_name(step)
     expected = diagnosis.get("expected") or {}
     band = _band(expected.get(f"{step}_band_ohm"))
     centre = _finite(expected.get(field))

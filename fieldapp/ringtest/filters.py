@@ -25,6 +25,16 @@ def named_filter(ids, names: dict | None) -> str:
     return ", ".join((names or {}).get(str(i), str(i)) for i in ids or ())
 
 
+@bp.app_template_global("reading_name")
+def reading_name(field: str, with_step: bool = False) -> str:
+    return labels.reading_name(field, with_step)
+
+
+@bp.app_template_global("outlet_name")
+def outlet_name(oid, label: str | None = None, kind: str | None = None) -> str:
+    return labels.outlet_name(oid, label, kind)
+
+
 @bp.app_template_global("term")
 def term(word: str, shown: str | None = None) -> Markup:
     """A trade term that opens its one-line explanation on tap (no script, no tooltip)."""

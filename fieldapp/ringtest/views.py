@@ -230,7 +230,7 @@ def delete_outlet(circuit_id: int, key: str):
         return redirect(url_for("ringtest.edit_outlet", circuit_id=circuit.id, key=key,
                                 step=back))
     db.session.commit()
-    flash(f"Outlet {outlet.key} ({outlet.label}) removed from the test; "
+    flash(f"Outlet {outlet_name(outlet.key, outlet.label)} removed from the test; "
           "its readings stay in the history.", "ok")
     return redirect(step_url(circuit, back))
 
