@@ -14,6 +14,7 @@ from sqlalchemy import select
 from fieldapp import changes, readings
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
 from fieldapp.extensions import db
+from fieldapp.labels import outlet_name
 from fieldapp.models import STEPS, Outlet, User, utcnow
 from fieldapp.readings import anchor_for
 from fieldapp.ringtest import bp
@@ -90,7 +91,7 @@ def safety(circuit_id: int):
 def step(circuit_id: int, step: str):
     if step not in READING_STEPS:
         abort(404)
-    return render_step(get_circuit(circuit_id), step)
+    return render_step(get_circuit(circuit_id), step, at=request.args.get("at"))
 
 
 @bp.post("/<int:circuit_id>/test/reading")
@@ -169,8 +170,10 @@ def add_outlet(circuit_id: int):
         form.spur_from_key.errors = [spur_error(error)]
         return render_step(circuit, step, outlet_form=form, status=422)
     db.session.commit()
-    flash(f"Added outlet {outlet.key}: {outlet.label}.", "ok")
-    return redirect(step_url(circuit, step, anchor_for(step, outlet.key)))
+    flash(f"Added outlet {outlet_name(outlet.key, outlet.label)}.", "ok")
+    # its reading field takes the focus; no URL fragment, which would take the focus away
+    return redirect(url_for("ringtest.step", circuit_id=circuit.id, step=step,
+                            at=anchor_for(step, outlet.key)))
 
 
 @bp.route("/<int:circuit_id>/outlets/<key>/edit", methods=["GET", "POST"])
@@ -227,7 +230,7 @@ def delete_outlet(circuit_id: int, key: str):
         return redirect(url_for("ringtest.edit_outlet", circuit_id=circuit.id, key=key,
                                 step=back))
     db.session.commit()
-    flash(f"Outlet {outlet.key} ({outlet.label}) removed from the test; "
+    flash(f"Outlet {outlet_name(outlet.key, outlet.label)} removed from the test; "
           "its readings stay in the history.", "ok")
     return redirect(step_url(circuit, back))
 
