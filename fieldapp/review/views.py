@@ -14,14 +14,17 @@ from fieldapp.records import circuit_reference
 from fieldapp.review import bp
 from fieldapp.review.flags import job_flags
 from fieldapp.review.forms import (
+    REASON_NEEDED,
     STATUS_LABELS,
     ApproveForm,
     FilterForm,
     ReopenForm,
     ReturnForm,
 )
+from fieldapp.review.gate import document_problems, job_problems
+from fieldapp.review.signoff import sign_off
 from fieldapp.sheets.context import sheet_context
-from fieldapp.sheets.inputs import job_diagnoses, job_inputs
+from fieldapp.sheets.inputs import job_inputs
 from fieldapp.web import actor, get_or_404
 from ringmath.messages import CAUTIONS
 
@@ -56,7 +59,8 @@ def index():
                                     Job.reference.ilike(pattern, escape="\\")))
     rows = []
     for job in db.session.scalars(query):
-        rows.append({"job": job, "flags": job_flags(*job_diagnoses(job))})
+        rows.append({"job": job, "flags": job_flags(job_problems(job), job.submit_reason,
+                                                     job.approve_reason)})
     return render_template("review/index.html", form=form, rows=rows,
                            status_labels=STATUS_LABELS, cautions=CAUTIONS)
 
@@ -64,13 +68,14 @@ def index():
 def _review_page(job: Job, status: int = 200, **forms):
     inputs = job_inputs(job)
     sheet = sheet_context(**inputs)
+    problems = document_problems(inputs["document"], inputs["diagnoses"], inputs["problems"])
     forms = {"approve_form": ApproveForm(), "return_form": ReturnForm(),
              "reopen_form": ReopenForm(), **forms}
     outlet_ids = {(o.circuit_id, o.key): o.id for c in job.circuits for o in c.outlets}
     return render_template("review/job.html", job=job, sheet=sheet,
                            circuits=list(zip(job.circuits, sheet["circuits"], strict=True)),
                            outlet_ids=outlet_ids, status_labels=STATUS_LABELS,
-                           **forms), status
+                           problems=problems, **forms), status
 
 
 @bp.get("/jobs/<int:job_id>")
@@ -98,12 +103,27 @@ def _decide(job_id: int, form_cls, form_name: str, allowed_from: str, values, do
 @bp.post("/jobs/<int:job_id>/approve")
 @role_required(*REVIEW_ROLES)
 def approve(job_id: int):
-    def values(form, now):
-        return {"status": "approved", "reviewed_by_id": current_user.id, "reviewed_at": now,
-                "approved_by_id": current_user.id, "approved_at": now,
-                "review_comment": (form.note.data or "").strip() or None}
-    return _decide(job_id, ApproveForm, "approve_form", "submitted", values,
-                   "Job {reference} approved: it is now read-only.")
+    """Approve a submitted job; one with problems (fieldapp/review/gate.py) only with a reason."""
+    job = get_or_404(Job, job_id)
+    form = ApproveForm()
+    if job.status != "submitted":
+        flash(f"Job {job.reference} is {STATUS_LABELS[job.status]}: nothing to approve.",
+              "error")
+        return redirect(url_for("review.job", job_id=job.id))
+    if not form.validate_on_submit():
+        return _review_page(job, 400, approve_form=form)
+    now = utcnow()
+    values = {"status": "approved", "reviewed_by_id": current_user.id, "reviewed_at": now,
+              "approved_by_id": current_user.id, "approved_at": now,
+              "review_comment": (form.note.data or "").strip() or None}
+    problems, done = sign_off(job, "approve", values, form.reason.data, actor())
+    if not done:
+        form.reason.errors = [REASON_NEEDED]
+        return _review_page(job, 422, approve_form=form)
+    db.session.commit()
+    flash(f"Job {job.reference} approved{' with the reason given' if problems else ''}: "
+          "it is now read-only.", "ok")
+    return redirect(url_for("review.job", job_id=job.id))
 
 
 @bp.post("/jobs/<int:job_id>/return")
@@ -121,7 +141,7 @@ def return_job(job_id: int):
 def reopen(job_id: int):
     def values(form, now):
         return {"status": "returned", "reviewed_by_id": current_user.id, "reviewed_at": now,
-                "approved_by_id": None, "approved_at": None,
+                "approved_by_id": None, "approved_at": None, "approve_reason": None,
                 "review_comment": form.reason.data.strip()}
     return _decide(job_id, ReopenForm, "reopen_form", "approved", values,
                    "Job {reference} reopened and returned to its tester.")
