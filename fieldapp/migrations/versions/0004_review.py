@@ -3,7 +3,7 @@ tester types them), the reasons given for submitting or approving a job with pro
 a reading queued offline was taken.
 
 Revision ID: 0004
-Revises: 0002
+Revises: 0006
 Create Date: 2026-12-02
 """
 
@@ -11,7 +11,7 @@ import sqlalchemy as sa
 from alembic import op
 
 revision = "0004"
-down_revision = "0002"
+down_revision = "0006"
 branch_labels = None
 depends_on = None
 
