@@ -15,7 +15,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from fieldapp.drawings import point_numbers
+from fieldapp.labels import outlet_name
 
 #: Problem kinds, in the order they are listed for a circuit.
 KINDS = ("not_assessed", "safety", "steps_missing", "zs_fail", "zs_unproved", "verdict",
@@ -48,15 +48,10 @@ class CircuitProblems:
     problems: tuple[Problem, ...] = field(default_factory=tuple)
 
 
-def _names(rec: dict, diagnosis: dict | None) -> dict[str, str]:
-    """Each outlet as the sheet and the ring picture name it: "No. 3 Kitchen"."""
-    numbers = point_numbers(diagnosis) if diagnosis else {}
-    names = {}
-    for i, outlet in enumerate(rec.get("outlets") or [], start=1):
-        oid = str(outlet["id"])
-        label = outlet.get("label") or oid
-        names[oid] = f"No. {numbers.get(oid, i)} {label}"
-    return names
+def _names(rec: dict) -> dict[str, str]:
+    """Each outlet by the app's one name for it (fieldapp/labels.py): "c · Kitchen"."""
+    return {str(o["id"]): outlet_name(o["id"], o.get("label"), o.get("kind"))
+            for o in rec.get("outlets") or []}
 
 
 def _listed(names: list[str]) -> str:
@@ -163,7 +158,7 @@ def _verdict(diagnosis: dict, listed: list[Problem]) -> list[Problem]:
 def circuit_problems(rec: dict, diagnosis: dict | None,
                      not_assessed: str | None = None) -> list[Problem]:
     """Everything that stands in the way of signing off one circuit (empty: nothing)."""
-    names = _names(rec, diagnosis)
+    names = _names(rec)
     problems = _safety(rec) + _steps_missing(rec, names)
     if diagnosis is None:
         return [Problem("not_assessed", f"Not assessed: {not_assessed or 'no diagnosis'}.")
