@@ -14,8 +14,6 @@ from fieldapp.extensions import db
 from fieldapp.jobs import bp
 from fieldapp.jobs.forms import CircuitForm, JobForm, SubmitJobForm, circuit_form_data
 from fieldapp.models import Circuit, Job, User, utcnow
-from fieldapp.review.forms import REASON_NEEDED
-from fieldapp.review.signoff import sign_off
 from fieldapp.web import actor, get_or_404, options
 from ringmath.messages import CAUTIONS
 
@@ -143,7 +141,11 @@ def submit(job_id: int):
         if not job.circuits:
             flash("Add and test at least one circuit before submitting.", "error")
             return redirect(url_for("jobs.detail", job_id=job.id))
-        # a job with problems (fieldapp/review/gate.py) goes on only with a typed reason
+        # a job with problems (fieldapp/review/gate.py) goes on only with a typed reason;
+        # imported here: the review package imports the transfer one, which imports jobs
+        from fieldapp.review.forms import REASON_NEEDED
+        from fieldapp.review.signoff import sign_off
+
         problems, done = sign_off(job, "submit", {"status": "submitted",
                                                   "submitted_at": utcnow()},
                                   form.reason.data, actor())

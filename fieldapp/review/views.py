@@ -9,9 +9,11 @@ from sqlalchemy import case, or_, select
 from fieldapp import changes
 from fieldapp.auth.roles import REVIEW_ROLES, role_required
 from fieldapp.extensions import db
-from fieldapp.models import ChangeLog, Circuit, Job, Outlet, utcnow
+from fieldapp.labels import outlet_name
+from fieldapp.models import Circuit, Job, Outlet, utcnow
 from fieldapp.records import circuit_reference
 from fieldapp.review import bp
+from fieldapp.review.diary import FIELD_WORDS, job_diary
 from fieldapp.review.flags import job_flags
 from fieldapp.review.forms import (
     REASON_NEEDED,
@@ -31,11 +33,6 @@ from ringmath.messages import CAUTIONS
 #: Jobs waiting for a decision first, then those with the tester, then the finished ones.
 LIST_ORDER = case({"submitted": 0, "returned": 1, "in_progress": 2, "approved": 3},
                   value=Job.status, else_=4)
-FIELD_WORDS = {
-    "r1": "step 1 r1 (line)", "rn": "step 1 rn (neutral)", "r2": "step 1 r2 (cpc)",
-    "ln": "step 2 L–N", "le": "step 3 L–CPC",
-}
-READINGS = tuple(FIELD_WORDS)
 
 
 def _like(text: str) -> str:
@@ -147,36 +144,6 @@ def reopen(job_id: int):
                    "Job {reference} reopened and returned to its tester.")
 
 
-def _history_rows(job: Job, circuit_id: int | None, outlet_id: int | None,
-                  field: str | None) -> list[dict]:
-    circuits = {c.id: c for c in job.circuits}
-    outlets = {o.id: o for c in job.circuits for o in c.outlets}
-    query = select(ChangeLog).where(or_(
-        (ChangeLog.entity == "job") & (ChangeLog.entity_id == job.id),
-        ChangeLog.circuit_id.in_(list(circuits) or [-1])))
-    if circuit_id is not None:
-        query = query.where(ChangeLog.circuit_id == circuit_id)
-    if outlet_id is not None:
-        query = query.where(ChangeLog.entity == "outlet", ChangeLog.entity_id == outlet_id)
-    if field:
-        query = query.where(ChangeLog.field == field)
-    rows = []
-    for row in db.session.scalars(query.order_by(ChangeLog.id.desc())):
-        if row.entity == "outlet" and row.entity_id in outlets:
-            outlet = outlets[row.entity_id]
-            what = (f"{circuit_reference(circuits[outlet.circuit_id])} · outlet "
-                    f"{outlet.label or outlet.key} ({outlet.key})")
-        elif row.entity == "circuit" and row.entity_id in circuits:
-            what = circuit_reference(circuits[row.entity_id])
-        else:
-            what = f"job {job.reference}"
-        rows.append({"at": row.at, "who": row.user.name if row.user else "—",
-                     "device": row.device or "—", "what": what,
-                     "field": FIELD_WORDS.get(row.field, row.field.replace("_", " ")),
-                     "old": row.old_value, "new": row.new_value})
-    return rows
-
-
 @bp.get("/jobs/<int:job_id>/history")
 @login_required
 def history(job_id: int):
@@ -192,8 +159,9 @@ def history(job_id: int):
             outlet is not None and outlet.circuit.job_id != job.id):
         return render_template("error.html", title="Not in this job",
                                message="That circuit or outlet belongs to another job."), 404
-    rows = _history_rows(job, circuit_id, outlet_id, field)
+    rows = job_diary(job, circuit_id, outlet_id, field)
     return render_template("review/history.html", job=job, rows=rows,
                            circuit_ref=circuit_reference(circuit) if circuit else None,
                            outlet=outlet, field=FIELD_WORDS.get(field, field),
+                           outlet_title=outlet_name(outlet.key, outlet.label) if outlet else "",
                            cautions=CAUTIONS)
