@@ -13,9 +13,9 @@ $(VENV)/.installed: pyproject.toml
 
 install: $(VENV)/.installed
 
+# setup, then serve on 127.0.0.1:$(PORT); the demo logins are printed last (make run PORT=8080)
 run: $(VENV)/.installed
-	$(PY) -m fieldapp.manage setup
-	$(PY) -m flask --app fieldapp run --host 127.0.0.1 --port $(PORT)
+	@$(PY) -m fieldapp.manage run --host 127.0.0.1 --port $(PORT)
 
 lint: $(VENV)/.installed
 	$(VENV)/bin/ruff check .
