@@ -5,11 +5,14 @@ from __future__ import annotations
 import copy
 import functools
 import json
+import logging
 
 from fieldapp.changes import live_outlets
 from fieldapp.models import Circuit, Job
 from ringmath import FORMAT
 from ringmath.diagnose import diagnose
+
+log = logging.getLogger(__name__)
 
 
 def reading_value(text: str | None):
@@ -96,6 +99,10 @@ def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
     try:
         result = _diagnose_text(json.dumps(record, sort_keys=True))
     except ValueError as error:
+        log.info("diagnosis of circuit %s refused: %s", circuit.id, error)
         return None, f"The record cannot be diagnosed yet: {error}"
+    except Exception:  # one bad circuit must never take a page or the job list down
+        log.exception("diagnosis of circuit %s failed", circuit.id)
+        return None, "The diagnosis failed for this circuit; the readings are kept."
     return copy.deepcopy(result), None
 
