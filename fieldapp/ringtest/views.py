@@ -258,9 +258,11 @@ def save_reading(circuit_id: int):
     circuit = _circuit(circuit_id)
     form = ReadingForm()
     field = form.field.data or ""
-    if field not in changes.READING_FIELDS or not form.validate_on_submit():
-        abort(400)
     step = "e2e" if field in changes.CIRCUIT_READINGS else field
+    if field not in changes.READING_FIELDS or not form.validate_on_submit():
+        if field in changes.READING_FIELDS and set(form.errors) == {"value"}:
+            return render_step(circuit, step, bad=form, status=422)  # too long to be a reading
+        abort(400)
     try:
         changes.check_ready_for_readings(circuit)
     except changes.Refused as refused:
