@@ -7,7 +7,7 @@
   has at most about 48 single-phase ways, and few of them are rings.
 - Text fields: the lengths of the forms and the database columns; job notes 4,000
   characters.
-- ``MAX_DOCUMENT_BYTES`` = 1 MB: the largest job these limits allow is about 600 kB as
+- ``MAX_DOCUMENT_BYTES`` = 2 MB: the largest job these limits allow exports as about 1 MB of
   indented JSON; ``MAX_CONTENT_LENGTH`` (the whole request) a little more for the form's
   multipart wrapping.
 - ``MAX_READING_CHARS`` = 32: a typed reading ("0,52", "OL"); longer text is not a reading.
@@ -19,6 +19,6 @@ fixed number of pages.
 MAX_OUTLETS_PER_CIRCUIT = 60
 MAX_CIRCUITS_PER_JOB = 60
 MAX_NOTES_CHARS = 4000
-MAX_DOCUMENT_BYTES = 1_000_000
-MAX_CONTENT_LENGTH = 1_200_000
+MAX_DOCUMENT_BYTES = 2_000_000
+MAX_CONTENT_LENGTH = 2_500_000
 MAX_READING_CHARS = 32
