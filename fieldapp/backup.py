@@ -5,7 +5,8 @@
 circuits, outlets, the change log, review decisions, account events, ...), rows in id order,
 dates and times as ISO text. Password hashes are left out unless asked for (a restored user
 without one must be given a password: ``manage reset-password``); remember tokens and sign-in
-attempts are never written (they belong to one running system).
+attempts are never written (they belong to one running system), nor stored diagnoses
+(recomputed from the readings when needed).
 
 ``restore(doc)`` migrates an empty database to the backup's revision, refuses one that holds
 any row, inserts every table in dependency order (a column that refers to its own table is
@@ -24,8 +25,9 @@ from fieldapp.extensions import db
 from fieldapp.models import utcnow
 
 FORMAT = "fieldapp-backup/1"
-#: Tables that describe one running system, not the records: never backed up.
-SKIPPED = ("remember_token", "login_attempt")
+#: Tables that describe one running system or hold derived data (stored diagnoses are
+#: recomputed on demand), not the records: never backed up.
+SKIPPED = ("remember_token", "login_attempt", "stored_diagnosis")
 #: A password hash that matches no password (werkzeug never produces it).
 NO_PASSWORD = "!restored-without-password"
 

@@ -166,6 +166,22 @@ class ChangeLog(db.Model):
     user: Mapped[User | None] = relationship()
 
 
+class StoredDiagnosis(db.Model):
+    """A diagnosis computed once per distinct circuit record and engine, shared by every worker
+    and server (a cache: a row can always be recomputed from the record)."""
+
+    __tablename__ = "stored_diagnosis"
+    __table_args__ = (UniqueConstraint("record_hash", "engine"),)
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    #: sha256 of the record's canonical JSON (sorted keys, no job block).
+    record_hash: Mapped[str] = mapped_column(String(64))
+    #: fieldapp.diagnoses.ENGINE_VERSION at the time it was computed.
+    engine: Mapped[str] = mapped_column(String(64))
+    result: Mapped[str] = mapped_column(Text)
+    created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
+
+
 class RememberToken(db.Model):
     """A "keep me logged in" token: the cookie holds selector:secret, the table the secret's
     SHA-256. A new one on every login; revoked at sign-out and with the session version."""
