@@ -295,3 +295,28 @@ def test_generated_readings_never_500(app, tester, make_circuit, value, step, ou
         assert counts(app) == before
     else:
         assert counts(app)["change_log"] > before["change_log"]
+
+
+def test_one_failing_diagnosis_is_logged_and_breaks_no_page(app, supervisor, make_circuit,
+                                                            monkeypatch, caplog):
+    import logging
+
+    from fieldapp import records
+
+    caplog.set_level(logging.INFO, logger="fieldapp")
+    good = make_circuit(status="submitted")
+    bad = make_circuit(status="submitted", description="the bad one")
+    real = records.diagnosis_for
+
+    def sometimes(record):
+        if record["circuit"]["description"] == "the bad one":
+            raise ZeroDivisionError("a bug in one diagnosis")
+        return real(record)
+
+    monkeypatch.setattr(records, "diagnosis_for", sometimes)
+    assert supervisor.get("/review/").status_code == 200
+    assert supervisor.get(f"/circuits/{bad}/results").status_code == 200
+    assert supervisor.get(f"/circuits/{good}/results").status_code == 200
+    failures = [r for r in caplog.records if r.levelno == logging.ERROR
+                and f"diagnosis of circuit {bad} failed" in r.getMessage()]
+    assert failures and failures[0].exc_info is not None
