@@ -282,8 +282,10 @@ def add_outlet(circuit: Circuit, values: dict, actor: Actor,
     if earlier is not None:
         return db.session.get(Outlet, earlier.entity_id)
     _check_spur_source(circuit, values.get("spur_from_key"), None)
-    if len(live_outlets(circuit)) >= limits.MAX_OUTLETS_PER_CIRCUIT:
-        raise Refused(f"A circuit holds at most {limits.MAX_OUTLETS_PER_CIRCUIT} outlets.",
+    if len(live_outlets(circuit)) >= limits.MAX_OUTLETS_PER_CIRCUIT or sum(
+            len(live_outlets(c)) for c in circuit.job.circuits) >= limits.MAX_OUTLETS_PER_JOB:
+        raise Refused(f"A circuit holds at most {limits.MAX_OUTLETS_PER_CIRCUIT} outlets and a "
+                      f"job {limits.MAX_OUTLETS_PER_JOB}.",
                       job_id=circuit.job_id, circuit_id=circuit.id)
     last = db.session.scalar(
         select(func.max(Outlet.position)).where(Outlet.circuit_id == circuit.id))

@@ -25,7 +25,7 @@ MESSAGES = {
     404: ("Not found", "There is nothing at this address."),
     405: ("Not allowed here", "This address does not take that kind of request."),
     413: ("Too large", "That was more than the app accepts in one go (a job file is at most "
-                       "2 MB)."),
+                       "1 MB)."),
     500: ("Something went wrong", "Nothing was saved from this request. Try again; if it "
                                   "happens again, tell your supervisor what you were doing."),
 }

@@ -44,6 +44,7 @@ def counts(app) -> dict[str, int]:
     (limits.MAX_CIRCUITS_PER_JOB + 1, 1, "circuits: at most 60 circuits in one job"),
     (1, limits.MAX_OUTLETS_PER_CIRCUIT + 1,
      "circuits[0].outlets: at most 60 outlets on one circuit"),
+    (7, 60, "circuits: at most 400 outlets in one job, this file has 420"),
 ])
 def test_an_import_over_the_board_limits_is_refused(app, tester, circuits, outlets, error):
     before = counts(app)
@@ -66,6 +67,7 @@ def test_the_forms_stop_at_the_same_limits(app, tester, make_circuit, monkeypatc
     from fieldapp.models import Circuit, Outlet
 
     monkeypatch.setattr(limits, "MAX_OUTLETS_PER_CIRCUIT", 2)
+    monkeypatch.setattr(limits, "MAX_OUTLETS_PER_JOB", 2)
     monkeypatch.setattr(limits, "MAX_CIRCUITS_PER_JOB", 1)
     cid = make_circuit(outlets=[{"label": "a"}, {"label": "b"}])
     response = tester.post(f"/circuits/{cid}/outlets", data={"label": "c",
@@ -113,7 +115,7 @@ def test_sqlite_runs_in_wal_mode_with_a_busy_timeout(app):
 def test_saves_during_a_large_import_all_succeed(app, make_circuit, login):
     """Three phones save readings while one big job is imported: no save fails."""
     cids = [make_circuit(outlets=[{"label": "Hall"}]) for _ in range(3)]
-    doc = big_doc(20, 60, "BIG-LOAD")
+    doc = big_doc(10, 40, "BIG-LOAD")  # the largest job allowed: 400 outlets
     results: dict[str, list] = {"import": [], "saves": []}
     start = threading.Barrier(4)
 
@@ -151,4 +153,4 @@ def test_saves_during_a_large_import_all_succeed(app, make_circuit, login):
         logged = db.session.scalar(sa.select(sa.func.count(ChangeLog.id)).where(
             ChangeLog.client_id.like("phone%")))
         assert logged == 45
-    assert counts(app)["outlet"] == 3 + 20 * 60
+    assert counts(app)["outlet"] == 3 + 10 * 40
