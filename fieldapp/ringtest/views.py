@@ -102,6 +102,9 @@ def save_reading(circuit_id: int):
     form = ReadingForm()
     field = form.field.data or ""
     if field not in changes.READING_FIELDS or not form.validate_on_submit():
+        if field in changes.READING_FIELDS and set(form.errors) == {"value"}:
+            # too long to be a reading: the form with its message
+            return render_step(circuit, readings.step_of(field), bad=form, status=422)
         abort(400)
     step = readings.step_of(field)
     outlet = (readings.find_outlet(circuit, form.outlet.data)
