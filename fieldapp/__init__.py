@@ -19,7 +19,8 @@ from fieldapp.extensions import csrf, db, login_manager
 ROOT = Path(__file__).resolve().parent.parent
 #: Blueprints built in this package; optional ones are registered when their module exists.
 BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api",
-              "fieldapp.review", "fieldapp.sheets", "fieldapp.transfer")
+              "fieldapp.review", "fieldapp.sheets", "fieldapp.transfer",
+              "fieldapp.live")
 
 
 def create_app(config: dict | None = None) -> Flask:

@@ -12,6 +12,7 @@ from sqlalchemy import select
 
 from fieldapp import changes
 from fieldapp.extensions import db
+from fieldapp.live.values import live_circuit_fields
 from fieldapp.models import Circuit, Job
 from ringmath import parse_document
 
@@ -38,6 +39,7 @@ def circuit_fields(block: dict) -> dict:
         "ze_source": block.get("ze_source") or "measured",
         "earthing": block.get("earthing") or None,
         "cable_length_m": block.get("cable_length_m"),
+        **live_circuit_fields(block),
     }
 
 
@@ -46,7 +48,7 @@ def _outlet_fields(doc: dict) -> dict:
         "key": str(doc["id"]), "label": doc.get("label") or "",
         "kind": doc.get("kind") or "twin_socket", "spur_from_key": doc.get("spur_from") or None,
         "fuse_a": doc.get("fuse_a"), "spur_csa_mm2": doc.get("spur_csa_mm2"),
-        "spur_cpc_csa_mm2": doc.get("spur_cpc_csa_mm2"),
+        "spur_cpc_csa_mm2": doc.get("spur_cpc_csa_mm2"), "taken_at": doc.get("taken_at") or None,
     }
 
 
@@ -64,7 +66,7 @@ def import_circuit(job: Job, record: dict, actor: changes.Actor, position: int) 
             changes.set_reading(circuit, name, e2e[name], actor)
     for doc in record.get("outlets") or []:
         outlet = changes.add_outlet(circuit, _outlet_fields(doc), actor)
-        for name in ("ln", "le"):
+        for name in ("ln", "le", *changes.LIVE_OUTLET_READINGS):
             if doc.get(name) is not None:
                 changes.set_reading(circuit, name, doc[name], actor, outlet=outlet)
     return circuit
