@@ -157,3 +157,19 @@ class ChangeLog(db.Model):
     client_id: Mapped[str | None] = mapped_column(String(64), unique=True)
 
     user: Mapped[User | None] = relationship()
+
+
+class StoredDiagnosis(db.Model):
+    """A diagnosis computed once per distinct circuit record and engine, shared by every worker
+    and server (a cache: a row can always be recomputed from the record)."""
+
+    __tablename__ = "stored_diagnosis"
+    __table_args__ = (UniqueConstraint("record_hash", "engine"),)
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    #: sha256 of the record's canonical JSON (sorted keys, no job block).
+    record_hash: Mapped[str] = mapped_column(String(64))
+    #: fieldapp.diagnoses.ENGINE_VERSION at the time it was computed.
+    engine: Mapped[str] = mapped_column(String(64))
+    result: Mapped[str] = mapped_column(Text)
+    created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
