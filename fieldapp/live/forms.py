@@ -111,7 +111,8 @@ class ScheduleFields:
         if name is None or name not in self.schedule_names():
             name = next(n for n in self.schedule_names() if n != "parallel_paths")
         text = str(error)
-        detail = text.split(": ", 1)[1] if ": " in text else text
+        detail = getattr(error, "detail", None) or (text.split(": ", 1)[1] if ": " in text
+                                                     else text)
         field = getattr(self, name)
         field.errors = list(field.errors) + [f"{detail[0].upper()}{detail[1:]}."]
 

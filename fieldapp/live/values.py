@@ -20,9 +20,9 @@ CPC_KIND_LABELS = {
     "armour": "Cable armour",
     "separate": "A separate cpc conductor",
 }
-CPC_KINDS = tuple(getattr(rec, "CPC_KINDS", CPC_KIND_LABELS))
+CPC_KINDS = rec.CPC_KINDS
 #: Where an outlet's readings were taken: at the socket front (plug-in lead) or the terminals.
-TAKEN_AT = ("front", "terminals")
+TAKEN_AT = rec.TAKEN_AT
 TAKEN_AT_LABELS = {"front": "at the front (plug-in lead)", "terminals": "at the terminals"}
 #: Insulation readings of the record: record key -> circuit column.
 IR_COLUMNS = {"ln_mohm": "ir_ln_mohm", "le_mohm": "ir_le_mohm", "ne_mohm": "ir_ne_mohm"}
@@ -40,10 +40,8 @@ def reading_text(raw, path: str) -> str | None:
 
 def _ir_text(value) -> str | None:
     """ringmath's parsed insulation value (IrValue) as stored: "200" or ">999"."""
-    if value is None:
-        return None
-    number = f"{float(value.value_mohm):g}"
-    return f">{number}" if value.over else number
+    shown = rec.format_ir(value)
+    return shown if shown is None or isinstance(shown, str) else repr(float(shown))
 
 
 def parse_circuit_fields(values: dict, path: str = "circuit") -> dict:
@@ -55,17 +53,15 @@ def parse_circuit_fields(values: dict, path: str = "circuit") -> dict:
     """
     doc = {"ocpd": _PROBE_OCPD, **values}
     parsed = rec.parse_circuit(doc, path)
-    insulation = getattr(parsed, "insulation", None)
-    rcd = parsed.rcd
+    insulation, rcd = parsed.insulation, parsed.rcd
     return {
-        "cpc_kind": getattr(parsed, "cpc_kind", None) or "cable_core",
-        "parallel_paths": bool(getattr(parsed, "parallel_paths", False)),
-        "pfc_ka": getattr(parsed, "pfc_ka", None),
+        "cpc_kind": parsed.cpc_kind, "parallel_paths": parsed.parallel_paths,
+        "pfc_ka": parsed.pfc_ka,
         "ir_test_v": insulation.test_v if insulation else None,
         **{column: _ir_text(getattr(insulation, key)) if insulation else None
            for key, column in IR_COLUMNS.items()},
-        "rcd_trip_ms": getattr(rcd, "trip_ms", None) if rcd else None,
-        "rcd_button_ok": getattr(rcd, "button_ok", None) if rcd else None,
+        "rcd_trip_ms": rcd.trip_ms if rcd else None,
+        "rcd_button_ok": rcd.button_ok if rcd else None,
     }
 
 
