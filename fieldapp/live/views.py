@@ -198,3 +198,9 @@ def save_circuit(circuit_id: int):
     db.session.commit()
     flash("Circuit results saved." if changed else "Nothing changed.", "ok")
     return redirect(url_for("live.page", circuit_id=circuit.id, _anchor="circuit-results"))
+
+
+@bp.app_template_global("live_for")
+def live_for(circuit: Circuit, diagnosis: dict | None) -> dict:
+    """The live tests' summary for a page that shows a circuit's results (Results)."""
+    return lf.live_summary(circuit_record(circuit, with_job=False), diagnosis)

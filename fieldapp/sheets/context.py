@@ -15,6 +15,7 @@ import math
 from markupsafe import Markup
 
 from fieldapp.drawings import KIND_WORDS, point_numbers, ring_picture
+from fieldapp.live.feedback import live_summary
 from ringmath.messages import CAUTIONS
 
 VERDICT_WORDS = {
@@ -305,6 +306,7 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
     # beside it (``key``) and prints the findings in full
     ctx["sketch"] = ring_picture(diagnosis, key=False) if diagnosis else Markup("")
     ctx["key"] = _key_rows(ctx["outlets"])
+    ctx["live"] = live_summary(rec, diagnosis or None)
     return ctx
 
 
