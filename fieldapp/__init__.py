@@ -10,11 +10,13 @@ import importlib
 import os
 from pathlib import Path
 
-from flask import Flask, redirect, render_template, send_from_directory, url_for
+from flask import Flask, redirect, render_template, request, send_from_directory, url_for
+from flask_compress import Compress
 from flask_wtf.csrf import CSRFError
 
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
+from fieldapp.models import utcnow
 
 ROOT = Path(__file__).resolve().parent.parent
 #: Blueprints built in this package; optional ones are registered when their module exists.
@@ -51,7 +53,36 @@ def create_app(config: dict | None = None) -> Flask:
     for name in BLUEPRINTS:
         app.register_blueprint(importlib.import_module(name).bp)
     _register_pages(app)
+    _register_cache_policy(app)
     return app
+
+
+#: Pages and JSON carry job data: no browser cache, proxy or back/forward copy may keep them
+#: (a shared phone must not hand one user's jobs to the next, and Back must ask again). The
+#: service worker keeps its own per-user copies for offline use and clears them at logout.
+NO_STORE = "no-store"
+#: Static files: revalidated by ETag on every fetch outside the service worker, whose cache
+#: (versioned in sw.js) is what makes warm loads free.
+REVALIDATE = "no-cache"
+
+
+def _register_cache_policy(app: Flask) -> None:
+    app.config.setdefault("COMPRESS_MIN_SIZE", 500)
+    app.config.setdefault("COMPRESS_STREAMS", False)
+    Compress(app)
+
+    @app.after_request
+    def cache_policy(response):
+        if request.path.startswith("/static/") or request.path == "/sw.js":
+            response.headers.setdefault("Cache-Control", REVALIDATE)
+            if response.direct_passthrough and response.status_code == 200:
+                # read the (small) file so it is compressed whole; the file is closed with
+                # the response
+                response.direct_passthrough = False
+                response.make_sequence()
+        elif response.mimetype in ("text/html", "application/json"):
+            response.headers["Cache-Control"] = NO_STORE
+        return response
 
 
 def _register_pages(app: Flask) -> None:
@@ -72,6 +103,8 @@ def _register_pages(app: Flask) -> None:
     def page_globals():
         return {
             "can_test": can_test,
+            # when the page was made (UTC, ISO 8601): an offline copy says "as of" this time
+            "rendered_at": lambda: utcnow().replace(microsecond=0).isoformat() + "Z",
         }
 
     @app.errorhandler(CSRFError)

@@ -4,4 +4,4 @@ from flask import Blueprint
 
 bp = Blueprint("api", __name__, url_prefix="/api")
 
-from fieldapp.api import views  # noqa: E402, F401
+from fieldapp.api import offline, views  # noqa: E402, F401

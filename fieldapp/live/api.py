@@ -5,14 +5,14 @@ from __future__ import annotations
 
 from flask import jsonify, render_template
 
-from fieldapp import changes
+from fieldapp import changes, labels
 from fieldapp.api.schemas import ReadingOut
 from fieldapp.extensions import db
 from fieldapp.live import feedback as lf
 from fieldapp.live.service import READING_NAMES, find_outlet, reading_message, save_live_reading
 from fieldapp.models import Circuit
 from fieldapp.records import diagnose_circuit
-from fieldapp.ringtest import feedback as fb
+from fieldapp.ringtest.answer import leading as leading_of
 from fieldapp.web import actor
 
 
@@ -43,7 +43,7 @@ def post_live_reading(circuit: Circuit, data: dict):
     db.session.commit()
     diagnosis, _ = diagnose_circuit(circuit)
     zfb = lf.zs_feedback(diagnosis, outlet.key) if field == "zs_measured" else None
-    leading = fb.leading(diagnosis)
+    leading = leading_of(diagnosis)
     if field == "zs_measured":
         html = render_template("live/_zs_feedback.html", zfb=zfb, value=result.new)
     else:
@@ -54,9 +54,9 @@ def post_live_reading(circuit: Circuit, data: dict):
         "outlet": outlet.key, "value": result.new, "previous": result.old,
         "feedback": {k: zfb[k] for k in ("status", "status_words", "text")} if zfb else None,
         "leading": leading, "next_anchor": None,
-        "message": "Already saved." if result.duplicate else f"Saved {fb.ohm(result.new)}.",
+        "message": "Already saved." if result.duplicate else f"Saved {labels.ohm(result.new)}.",
         "html": {"feedback": html,
                  "leading": render_template("ringtest/_leading.html", leading=leading,
-                                            names=fb.outlet_names(diagnosis))},
+                                            names=labels.outlet_names(diagnosis))},
     }
     return jsonify(ReadingOut().dump(reply)), 200

@@ -11,9 +11,10 @@ from __future__ import annotations
 from flask import abort, flash, redirect, render_template, url_for
 from flask_login import login_required
 
-from fieldapp import changes
+from fieldapp import changes, labels
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
 from fieldapp.extensions import db
+from fieldapp.labels import KIND_LABELS
 from fieldapp.live import bp
 from fieldapp.live import feedback as lf
 from fieldapp.live.forms import LiveCircuitForm, TakenAtForm, schedule_data
@@ -21,8 +22,8 @@ from fieldapp.live.service import READING_NAMES, find_outlet, reading_message, s
 from fieldapp.live.values import TAKEN_AT, TAKEN_AT_LABELS
 from fieldapp.models import STEPS, Circuit
 from fieldapp.records import circuit_record, diagnose_circuit
-from fieldapp.ringtest import feedback as fb
-from fieldapp.ringtest.forms import KIND_LABELS, ReadingForm
+from fieldapp.ringtest.answer import leading as leading_of
+from fieldapp.ringtest.forms import ReadingForm
 from fieldapp.web import actor, get_or_404
 from ringmath.messages import CAUTIONS
 
@@ -93,7 +94,7 @@ def render_page(circuit: Circuit, *, bad: ReadingForm | None = None,
     return render_template(
         "live/step.html", circuit=circuit, job=circuit.job, stepper=_stepper(circuit),
         cards=_cards(circuit, diagnosis, bad), form=circuit_form, summary=summary,
-        leading=fb.leading(diagnosis), names=fb.outlet_names(diagnosis),
+        leading=leading_of(diagnosis), names=labels.outlet_names(diagnosis),
         diagnosis_error=diagnosis_error, writable=_writable(circuit),
         safe=changes.safety_confirmed(circuit), reading_names=READING_NAMES,
         taken_words=TAKEN_AT_LABELS, cautions=(diagnosis or {}).get("cautions") or CAUTIONS,
@@ -144,12 +145,12 @@ def save_reading(circuit_id: int):
     where = f"{outlet.key} ({outlet.label})"
     name = READING_NAMES[field]
     if result.duplicate:
-        flash(f"Already saved: {name} at {where} = {fb.ohm(result.new)}.", "info")
+        flash(f"Already saved: {name} at {where} = {labels.ohm(result.new)}.", "info")
     elif result.old is not None and result.old != result.new:
-        flash(f"Corrected {name.lower()} at {where}: {fb.ohm(result.old)} → "
-              f"{fb.ohm(result.new)} (the old value stays in the history).", "ok")
+        flash(f"Corrected {name.lower()} at {where}: {labels.ohm(result.old)} → "
+              f"{labels.ohm(result.new)} (the old value stays in the history).", "ok")
     else:
-        flash(f"Saved {name.lower()} at {where}: {fb.ohm(result.new)}.", "ok")
+        flash(f"Saved {name.lower()} at {where}: {labels.ohm(result.new)}.", "ok")
     return redirect(url_for("live.page", circuit_id=circuit.id,
                             _anchor=anchor_for("zs_measured", outlet.key)))
 

@@ -122,3 +122,14 @@ def test_offline_page_carries_the_caution_and_no_remote_assets():
     assert '<html lang="en-GB">' in html
     assert "does not certify" in html and "proved dead" in html
     assert not re.search(r'(src|href)="(https?:)?//', html)
+
+
+def test_icons_are_small_palette_images():
+    # simple drawings of four colours: palette PNGs, a few kilobytes each
+    total = 0
+    for name in draw_icons().OUTPUTS:
+        path = STATIC / "icons" / name
+        with Image.open(path) as image:
+            assert image.mode == "P", name
+        total += path.stat().st_size
+    assert total < 20_000
