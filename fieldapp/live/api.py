@@ -9,8 +9,9 @@ from fieldapp import changes, labels
 from fieldapp.api.schemas import ReadingOut
 from fieldapp.extensions import db
 from fieldapp.live import feedback as lf
-from fieldapp.live.service import READING_NAMES, find_outlet, reading_message, save_live_reading
+from fieldapp.live.service import find_outlet, save_live_reading
 from fieldapp.models import Circuit
+from fieldapp.readings import BadReading
 from fieldapp.records import diagnose_circuit
 from fieldapp.ringtest.answer import leading as leading_of
 from fieldapp.web import actor
@@ -27,20 +28,15 @@ def post_live_reading(circuit: Circuit, data: dict):
     outlet = find_outlet(circuit, data["outlet"])
     if outlet is None:
         return _error(400, "outlet", "No such outlet on this circuit.")
-    value = data["value"]
-    if value is None or (isinstance(value, str) and not value.strip()):
-        return _error(400, "value", f"{READING_NAMES[field]}: type the reading in ohms, or "
-                                    "tap OL if the instrument shows OL.")
     try:
-        result = save_live_reading(circuit, field, value, actor(), outlet=outlet,
+        result = save_live_reading(circuit, field, data["value"], actor(), outlet=outlet,
                                    client_id=data["client_id"])
     except changes.Refused as refused:
         db.session.rollback()
         return _error(409, "_state", str(refused))
-    except ValueError as error:
+    except BadReading as bad:
         db.session.rollback()
-        return _error(400, "value", reading_message(field, error))
-    db.session.commit()
+        return jsonify({"errors": {bad.field: [bad.message]}, "kind": bad.kind}), 400
     diagnosis, _ = diagnose_circuit(circuit)
     zfb = lf.zs_feedback(diagnosis, outlet.key) if field == "zs_measured" else None
     leading = leading_of(diagnosis)

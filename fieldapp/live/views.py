@@ -18,9 +18,10 @@ from fieldapp.labels import KIND_LABELS
 from fieldapp.live import bp
 from fieldapp.live import feedback as lf
 from fieldapp.live.forms import LiveCircuitForm, TakenAtForm, schedule_data
-from fieldapp.live.service import READING_NAMES, find_outlet, reading_message, save_live_reading
+from fieldapp.live.service import READING_NAMES, find_outlet, save_live_reading
 from fieldapp.live.values import TAKEN_AT, TAKEN_AT_LABELS
 from fieldapp.models import STEPS, Circuit
+from fieldapp.readings import BadReading
 from fieldapp.records import circuit_record, diagnose_circuit
 from fieldapp.ringtest.answer import leading as leading_of
 from fieldapp.ringtest.forms import ReadingForm
@@ -126,22 +127,16 @@ def save_reading(circuit_id: int):
     outlet = find_outlet(circuit, form.outlet.data)
     if outlet is None:
         abort(404)
-    raw = form.raw_value()
-    if raw is None:
-        form.value.errors = [f"{READING_NAMES[field]}: type the reading in ohms, or tap OL "
-                             "if the instrument shows OL."]
-        return render_page(circuit, bad=form, status=422)
     try:
-        result = save_live_reading(circuit, field, raw, actor(), outlet=outlet,
+        result = save_live_reading(circuit, field, form.raw_value(), actor(), outlet=outlet,
                                    client_id=form.client_id.data or None)
     except changes.Refused as refused:
         db.session.rollback()
         return _refused(circuit, refused)
-    except ValueError as error:
+    except BadReading as bad:
         db.session.rollback()
-        form.value.errors = [reading_message(field, error)]
+        form.value.errors = [bad.message]
         return render_page(circuit, bad=form, status=422)
-    db.session.commit()
     where = f"{outlet.key} ({outlet.label})"
     name = READING_NAMES[field]
     if result.duplicate:
