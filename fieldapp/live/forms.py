@@ -39,9 +39,7 @@ LIVE_PAGE_FIELDS = ("pfc_ka", "ir_test_v", "ir_ln_mohm", "ir_le_mohm", "ir_ne_mo
 
 
 def _ir_field(label: str) -> StringField:
-    return StringField(label, validators=[Length(max=16)], render_kw=DECIMAL,
-                       description="MΩ as the instrument shows it: a number, or “>999” "
-                                   "when it shows “> 999”")
+    return StringField(label, validators=[Length(max=16)], render_kw=DECIMAL)
 
 
 class ScheduleFields:
