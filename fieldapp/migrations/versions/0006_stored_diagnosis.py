@@ -2,7 +2,7 @@
 app worker and server.
 
 Revision ID: 0006
-Revises: 0002
+Revises: 0003
 Create Date: 2026-12-02
 """
 
@@ -10,7 +10,7 @@ import sqlalchemy as sa
 from alembic import op
 
 revision = "0006"
-down_revision = "0002"
+down_revision = "0003"
 branch_labels = None
 depends_on = None
 
