@@ -196,3 +196,61 @@ def test_the_record_carries_the_live_fields(app, tester, make_circuit):
     parsed = parse_record(record)  # ringmath reads what the app writes
     assert parsed.outlets[0].zs_measured_ohm == 0.68
     assert parsed.outlets[0].ln_used_ohm == 0.25  # the terminal re-measure is the one used
+
+
+def test_results_review_and_sheet_show_the_live_results_with_cautions(
+        app, tester, supervisor, make_circuit, parse):
+    from fieldapp.models import Circuit, Job
+    from fieldapp.sheets.inputs import job_inputs
+
+    cid = live_circuit(make_circuit, rcd_rated_ma=30.0, rcd_type="A", rcd_trip_ms=24.0,
+                       rcd_button_ok=True, ir_test_v=500.0, ir_ln_mohm=">999",
+                       ir_le_mohm="150.0", ir_ne_mohm=">999", pfc_ka=1.2)
+    post(tester, cid, "zs_measured", "b", "0.74")
+    results = parse(tester.get(f"/circuits/{cid}/results"))
+    block = results.select_one(".live-summary")
+    row = {tr.th.get_text(" ", strip=True).split(" ")[0]: [td.get_text(strip=True)
+                                                         for td in tr.select("td")]
+           for tr in block.select("tbody tr")}
+    assert row["b"][2] == "0.74"  # measured Zs beside the prediction and the limit
+    assert row["b"][3] == "1.10"  # 32 A type B, 80 % of BS 7671:2018 Table 41.3's 1.37 Ω
+    text = block.get_text(" ", strip=True)
+    assert "> 999" in text and "150" in text and "24 ms" in text and "1.2 kA" in text
+    assert "competent person" in text
+    assert "competent person" in results.select_one(".cautions").get_text()
+    assert block.select_one("a")["href"] == f"/circuits/{cid}/live"
+    with app.app_context():
+        job_id = db.session.get(Circuit, cid).job_id
+        tester.post(f"/jobs/{job_id}/submit", data={})
+        status = db.session.get(Job, job_id).status
+    assert status == "submitted"
+    review = parse(supervisor.get(f"/review/jobs/{job_id}"))
+    review_text = review.select_one(".live-summary").get_text(" ", strip=True)
+    assert "0.74" in review_text and "> 999" in review_text
+    with app.app_context():
+        from fieldapp.sheets.context import sheet_context
+
+        sheet = sheet_context(**job_inputs(db.session.get(Job, job_id)))
+    live = sheet["circuits"][0]["live"]
+    assert [r["measured"] for r in live["rows"]] == ["—", "0.74", "—", "—"]
+    assert live["insulation"]["ln"] == "> 999" and live["rcd"]["trip"] == "24 ms"
+
+
+def test_the_printed_sheet_prints_the_live_results(app, tester, make_circuit):
+    import io
+
+    import pypdf
+
+    cid = live_circuit(make_circuit, rcd_rated_ma=30.0, rcd_type="A", rcd_trip_ms=24.0,
+                       ir_test_v=500.0, ir_ln_mohm=">999")
+    post(tester, cid, "zs_measured", "b", "0.74")
+    with app.app_context():
+        from fieldapp.models import Circuit
+
+        job_id = db.session.get(Circuit, cid).job_id
+    pdf = tester.get(f"/jobs/{job_id}/sheet.pdf").data
+    text = " ".join(" ".join(p.extract_text() for p in pypdf.PdfReader(io.BytesIO(pdf)).pages)
+                    .split())
+    assert "Measured Zs, insulation and RCD" in text
+    assert "0.74" in text and "> 999" in text and "24 ms" in text
+    assert "competent person" in text
