@@ -25,8 +25,9 @@ from __future__ import annotations
 
 import math
 
-from ringmath.checks import finite, le_per_ln_factor
-from ringmath.devices import DeviceLimit, device_limit, fcu_limit, rcd_limit
+from ringmath.checks import finite
+from ringmath.conductors import spur_cable
+from ringmath.devices import DeviceLimit, NoCheckedLimit, device_limit, fcu_limit, rcd_limit
 from ringmath.findings import Finding
 from ringmath.meter import (
     GAIN_TOLERANCE,
@@ -55,13 +56,13 @@ def circuit_limit(test: RingTest) -> DeviceLimit:
 
 
 def _point_limit(test: RingTest, fcu: Outlet | None) -> DeviceLimit | None:
-    """The limit at a point: circuit, or the FCU fuse (None where that fuse has no figure)."""
+    """The limit at a point: circuit, or the FCU fuse (None where there is no checked figure)."""
     c = test.circuit
-    if fcu is None or (c.earthing == "TT" and c.rcd is not None):
-        return circuit_limit(test)
     try:
+        if fcu is None or (c.earthing == "TT" and c.rcd is not None):
+            return circuit_limit(test)
         return fcu_limit(fcu.fuse_a)
-    except ValueError:
+    except NoCheckedLimit:
         return None
 
 
@@ -93,7 +94,9 @@ def _spur_estimate(test: RingTest, outlet: Outlet, memo: dict) -> tuple[float, s
     if base is None or not finite(outlet.ln_ohm) or not finite(parent.ln_ohm):
         return None
     rise_ohm = max(0.0, upper_bound_ohm(outlet.ln_ohm) - lower_bound_ohm(parent.ln_ohm))
-    return ceil_to_resolution(base + rise_ohm * le_per_ln_factor(test, outlet)), "estimated"
+    cable = spur_cable(outlet.spur_csa_mm2, outlet.spur_cpc_csa_mm2,
+                       ring_live_csa_mm2=test.circuit.live_csa_mm2)
+    return ceil_to_resolution(base + rise_ohm * cable.le_per_ln), "estimated"
 
 
 def _zs(ze_ohm: float | None, r1r2_ohm: float | None) -> float | None:
@@ -112,7 +115,7 @@ def point_values(test: RingTest) -> tuple[dict, list[dict]]:
     "zs_max_ohm", "ok"}; ok is zs ≤ zs_max, False for an OL step 3, None while not known.
     ValueError naming circuit.ocpd.* for a device with no tabulated limit.
     """
-    limit = circuit_limit(test)
+    limit = _point_limit(test, None)
     ze = test.circuit.ze_ohm
     memo: dict = {}
     points = []
@@ -138,10 +141,25 @@ def point_values(test: RingTest) -> tuple[dict, list[dict]]:
     circuit_r1r2 = max(known) if known else _ring_estimate_ohm(test)
     summary = {
         "r1r2_ohm": circuit_r1r2, "zs_ohm": _zs(ze, circuit_r1r2),
-        "zs_max_ohm": limit.zs_max_ohm, "zs_tabulated_ohm": limit.zs_tabulated_ohm,
-        "device": limit.description, "limit_source": limit.source,
+        "zs_max_ohm": None if limit is None else limit.zs_max_ohm,
+        "zs_tabulated_ohm": None if limit is None else limit.zs_tabulated_ohm,
+        "device": _device_words(test) if limit is None else limit.description,
+        "limit_source": _no_limit_words(test) if limit is None else limit.source,
     }
     return summary, points
+
+
+def _device_words(test: RingTest) -> str:
+    o = test.circuit.ocpd
+    return f"{o.rating_a:g} A {o.standard}" + (f" type {o.curve}" if o.curve else "")
+
+
+def _no_limit_words(test: RingTest) -> str:
+    try:
+        device_limit(test.circuit.ocpd)
+    except NoCheckedLimit as exc:
+        return str(exc)
+    return ""
 
 
 def zs_findings(test: RingTest) -> list[Finding]:
@@ -151,7 +169,8 @@ def zs_findings(test: RingTest) -> list[Finding]:
     (info) when the circuit has an RCD, "ze_source" (warning) when Ze is declared or missing."""
     summary, points = point_values(test)
     findings = [_over_limit(p) for p in points if p["ok"] is False and p["zs_ohm"] is not None]
-    if not points and summary["zs_ohm"] is not None and summary["zs_ohm"] > summary["zs_max_ohm"]:
+    if (not points and summary["zs_ohm"] is not None and summary["zs_max_ohm"] is not None
+            and summary["zs_ohm"] > summary["zs_max_ohm"]):
         findings.append(_over_limit({**summary, "id": None, "r1r2_source": "estimated"}))
     unknown = [p for p in points if p["zs_max_ohm"] is None]
     if unknown:

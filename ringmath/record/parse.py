@@ -50,9 +50,10 @@ def _listed(value: float, path: str, allowed, unit: str) -> float:
 
 
 def parse_ocpd(doc: object, path: str = "circuit.ocpd") -> Ocpd:
-    """Parse the OCPD block and check the device is one ``ringmath.devices`` has a checked limit
-    for (RecordError "choice" naming ``<path>.standard`` / ``.curve`` / ``.rating_a``)."""
-    from ringmath.devices import device_limit  # devices imports the model: import on use
+    """Parse the OCPD block and check the device is one ``ringmath.devices`` lists (RecordError
+    "choice" naming ``<path>.standard`` / ``.curve`` / ``.rating_a``); a listed device whose
+    limit is not checked is still a valid record (its Zs limit is then unknown)."""
+    from ringmath.devices import check_device  # devices imports the model: import on use
 
     d = obj(doc, path)
     standard = text(d.get("standard"), f"{path}.standard", required=True)
@@ -62,7 +63,7 @@ def parse_ocpd(doc: object, path: str = "circuit.ocpd") -> Ocpd:
                     maximum=10_000.0, allow_none=False)
     assert rating is not None
     ocpd = Ocpd(standard=standard, curve=curve, rating_a=rating)
-    device_limit(ocpd, path)
+    check_device(ocpd, path)
     return ocpd
 
 
