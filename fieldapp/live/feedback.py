@@ -10,9 +10,11 @@ from __future__ import annotations
 from fieldapp.live.values import TAKEN_AT_LABELS
 
 #: The findings of the live tests and the dead tests beside the ring test (ringmath codes).
-LIVE_CODES = ("parallel_earth_path", "zs_measured_high", "insulation_low", "rcd_slow")
-#: The cross-check of a measured Zs against Ze + R1+R2, per outlet.
-CROSS_CHECK_CODES = ("parallel_earth_path", "zs_measured_high")
+LIVE_CODES = ("zs_measured_over_limit", "parallel_earth_path", "zs_measured_high",
+              "insulation_low", "insulation_test_voltage", "rcd_slow", "rcd_button")
+#: The findings about one outlet's measured Zs: over its limit, and the cross-check against
+#: Ze + R1+R2.
+CROSS_CHECK_CODES = ("zs_measured_over_limit", "parallel_earth_path", "zs_measured_high")
 #: Said wherever live results are shown, beside the usual cautions (common practice).
 LIVE_CAUTION = ("Zs, RCD and fault current are measured with the supply on: only by a "
                 "competent person, with suitable test leads and probes, keeping to the "
@@ -62,6 +64,9 @@ def zs_feedback(diagnosis: dict | None, key: str) -> dict | None:
     if point.get("zs_ohm") is not None:
         estimated = " (R1+R2 estimated)" if point.get("r1r2_estimated") else ""
         parts.append(f"Predicted Ze + R1+R2 = {ohm(point['zs_ohm'])} Ω{estimated}.")
+    span = point.get("zs_expected_range_ohm")
+    if span:
+        parts.append(f"A sound circuit measures {ohm(span[0])} to {ohm(span[1])} Ω here.")
     if measured is None:
         status = "pending"
     elif ok is True:
@@ -160,6 +165,7 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
         })
     insulation = circuit.get("insulation") or {}
     ir_result = result.get("insulation") or {}
+    ir_ok = ir_result.get("ok") if isinstance(ir_result.get("ok"), dict) else {}
     rcd = circuit.get("rcd") or {}
     rcd_result = result.get("rcd") or {}
     return {
@@ -171,11 +177,10 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
         "insulation": {
             "recorded": bool(insulation),
             "test_v": _quantity(insulation.get("test_v"), "V"),
-            "ln": _ir_words(insulation.get("ln_mohm")),
-            "le": _ir_words(insulation.get("le_mohm")),
-            "ne": _ir_words(insulation.get("ne_mohm")),
+            **{pair: _ir_words(insulation.get(f"{pair}_mohm"))
+               + (" LOW" if ir_ok.get(pair) is False else "") for pair in ("ln", "le", "ne")},
             "minimum": _quantity(ir_result.get("min_mohm"), "MΩ"),
-            "result": result_word(ir_result.get("ok")) if insulation else DASH,
+            "result": result_word(ir_result.get("all_ok")) if insulation else DASH,
             "source": ir_result.get("source") or ir_result.get("limit_source") or "",
         },
         "rcd": {
@@ -184,8 +189,8 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
             "type": rcd.get("type") or DASH,
             "trip": _quantity(rcd.get("trip_ms"), "ms"),
             "button": {True: "yes", False: "NO"}.get(rcd.get("button_ok"), "not checked"),
-            "limit": _quantity(rcd_result.get("max_ms") or rcd_result.get("limit_ms"), "ms"),
-            "result": result_word(rcd_result.get("ok")) if rcd.get("trip_ms") is not None
+            "limit": _quantity(rcd_result.get("max_trip_ms"), "ms"),
+            "result": result_word(rcd_result.get("trip_ok")) if rcd.get("trip_ms") is not None
             else DASH,
             "source": rcd_result.get("source") or rcd_result.get("limit_source") or "",
         },
