@@ -5,6 +5,7 @@ from __future__ import annotations
 import pytest
 from playwright.sync_api import expect
 from seeds import ring_circuit
+from test_phone import TAP_CHECK, TAP_PX
 
 pytestmark = pytest.mark.browser
 
@@ -52,6 +53,8 @@ def test_live_page_fits_360px_and_judges_a_zs_in_place(page, live_app, log_in):
     page.locator("details.terminals").first.evaluate("d => d.open = true")
     scroll, client = page.evaluate(WIDTHS)
     assert client == 360 and scroll <= client
+    page.locator("details.terminals").evaluate_all("ds => ds.forEach(d => d.open = true)")
+    assert page.evaluate(TAP_CHECK.replace("LIMIT", str(TAP_PX))) == []
     card = page.locator("#r-zs_measured-a")
     page.locator("#v-r-zs_measured-a").fill("0.74")
     page.locator("#s-r-zs_measured-a").click()
