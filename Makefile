@@ -3,7 +3,7 @@ VENV ?= .venv
 PY := $(VENV)/bin/python
 PORT ?= 5000
 
-.PHONY: run test lint bench install clean
+.PHONY: run test lint typecheck bench install clean
 
 $(VENV)/.installed: pyproject.toml
 	python3 -m venv $(VENV)
@@ -20,7 +20,10 @@ run: $(VENV)/.installed
 lint: $(VENV)/.installed
 	$(VENV)/bin/ruff check .
 
-test: $(VENV)/.installed lint
+typecheck: $(VENV)/.installed
+	$(VENV)/bin/mypy
+
+test: $(VENV)/.installed lint typecheck
 	$(VENV)/bin/pytest -q
 
 bench: $(VENV)/.installed

@@ -108,7 +108,7 @@ def _standard(text: str, path: str) -> str:
                       f"{show(text)} is not one of {', '.join(STANDARDS)}")
 
 
-def _rating(rating_a: float, ratings, path: str, what: str) -> int:
+def _rating(rating_a: float, ratings: list[int], path: str, what: str) -> int:
     for r in ratings:
         if math.isclose(float(rating_a), r, abs_tol=1e-9):
             return r

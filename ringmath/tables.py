@@ -10,7 +10,9 @@ data error and fails the import loudly.
 - ``COPPER``: csa_mm2 -> CopperRow, maximum resistance of plain annealed copper at 20 °C,
   IEC 60228 / BS EN 60228 Table 1, mΩ/m.
 - ``BREAKERS``: (standard, curve, rating_a) -> BreakerRow, BS 7671 Table 41.3 (0.4 s).
-- ``FUSES``: (standard, rating_a) -> FuseRow, BS 7671 Table 41.2 (0.4 s).
+- ``FUSES``: (standard, rating_a) -> LimitRow, BS 7671 Table 41.2 (0.4 s).
+- ``INSULATION``: tuple of InsulationRow, BS 7671 Table 64 (minimum insulation resistance).
+- ``RCD_TRIP``: tuple of RcdTripRow, the longest trip time at IΔn for a general (non-delay) RCD.
 """
 
 from __future__ import annotations
@@ -52,6 +54,33 @@ class LimitRow:
     def checked(self) -> bool:
         """True when the figure is there and was checked against a published copy."""
         return self.zs_ohm is not None and bool(self.where_checked)
+
+
+@dataclass(frozen=True)
+class InsulationRow:
+    """One voltage band of BS 7671 Table 64: circuits up to ``nominal_max_v`` V, tested at
+    ``test_v`` V d.c., satisfactory at ``min_mohm`` MΩ or more."""
+
+    band: str
+    nominal_max_v: float
+    test_v: float
+    min_mohm: float
+    edition: str
+    table: str
+    where_checked: str
+
+
+@dataclass(frozen=True)
+class RcdTripRow:
+    """The longest trip time in ms at the stated test current for RCDs of these types."""
+
+    kind: str
+    types: tuple[str, ...]
+    standard: str
+    test: str
+    max_trip_ms: float
+    edition: str
+    where_checked: str
 
 
 def _rows(name: str) -> list[dict[str, str]]:
@@ -96,6 +125,30 @@ def _load_fuses() -> Mapping[tuple[str, int], LimitRow]:
     return MappingProxyType(out)
 
 
+def _checked(row: dict[str, str], name: str, line: int) -> dict[str, str]:
+    if not row["where_checked"].strip():
+        raise ValueError(f"ringmath/data/{name} line {line}: no where_checked")
+    return row
+
+
+def _load_insulation() -> tuple[InsulationRow, ...]:
+    rows = [_checked(r, "insulation_min.csv", i)
+            for i, r in enumerate(_rows("insulation_min.csv"), start=2)]
+    return tuple(InsulationRow(r["band"], float(r["nominal_max_v"]), float(r["test_v"]),
+                               float(r["min_mohm"]), r["edition"], r["table"], r["where_checked"])
+                 for r in rows)
+
+
+def _load_rcd() -> tuple[RcdTripRow, ...]:
+    rows = [_checked(r, "rcd_trip_times.csv", i)
+            for i, r in enumerate(_rows("rcd_trip_times.csv"), start=2)]
+    return tuple(RcdTripRow(r["kind"], tuple(r["types"].split()), r["standard"], r["test"],
+                            float(r["max_trip_ms"]), r["edition"], r["where_checked"])
+                 for r in rows)
+
+
 COPPER: Mapping[float, CopperRow] = _load_copper()
 BREAKERS: Mapping[tuple[str, str, int], LimitRow] = _load_breakers()
 FUSES: Mapping[tuple[str, int], LimitRow] = _load_fuses()
+INSULATION: tuple[InsulationRow, ...] = _load_insulation()
+RCD_TRIP: tuple[RcdTripRow, ...] = _load_rcd()

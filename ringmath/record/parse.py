@@ -3,6 +3,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from ringmath.conductors import resistance_mohm_per_m
 from ringmath.record.model import (
     CPC_KINDS,
@@ -42,7 +44,7 @@ from ringmath.record.values import (
 )
 
 
-def _listed(value: float, path: str, allowed, unit: str) -> float:
+def _listed(value: float, path: str, allowed: tuple[float, ...], unit: str) -> float:
     if not any(abs(value - a) < 1e-9 for a in allowed):
         raise RecordError(path, "choice", f"{value:g} {unit} is not one of "
                           f"{', '.join(f'{a:g}' for a in allowed)} {unit}")
@@ -136,7 +138,7 @@ def parse_circuit(doc: object, path: str = "circuit") -> Circuit:
     )
 
 
-def _fuse(d: dict, kind: str, path: str) -> float | None:
+def _fuse(d: dict[str, Any], kind: str, path: str) -> float | None:
     fuse = number(d.get("fuse_a"), f"{path}.fuse_a", minimum=0.0, strict_min=True,
                   maximum=1000.0)
     if kind == "fcu":
@@ -173,7 +175,8 @@ def parse_outlet(doc: object, path: str) -> Outlet:
     )
 
 
-def _sized_list(value: object, path: str, most: int, *, required: bool = False) -> list:
+def _sized_list(value: object, path: str, most: int, *,
+                required: bool = False) -> list[Any]:
     if value is None and not required:
         return []
     if not isinstance(value, list):

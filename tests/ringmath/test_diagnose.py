@@ -150,7 +150,7 @@ def test_simulated_healthy_rings_pass_and_r1r2_is_never_optimistic():
         assert result["verdict"] == "satisfactory", result["findings"]
         for p in result["points"]:
             true = truth.service_r1r2_ohm[p["id"]]
-            assert p["r1r2_ohm"] >= true
+            assert p["r1r2_bound_ohm"] >= true
         assert sorted(result["ring_order"]) == sorted(
             o["id"] for o in record["outlets"] if o["spur_from"] is None)
 

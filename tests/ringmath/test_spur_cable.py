@@ -5,10 +5,10 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from ring_records import record
 
 from ringmath import zs
 from ringmath.network import Layout, step_resistance
-from tests.ringmath.ring_records import record
 
 #: IEC 60228 Table 1, ohms per metre at 20 °C.
 R_2_5, R_1_5, R_1_0 = 7.41e-3, 12.1e-3, 18.1e-3
