@@ -41,6 +41,9 @@ class Background:
         self._cond = threading.Condition()
         self._thread: threading.Thread | None = None
         self._pid = 0
+        #: circuit id -> hash of the record whose diagnosis failed here (so a poll stops
+        #: asking for it; a changed reading is a new record and is tried again)
+        self.failed: dict[int, str] = {}
 
     def submit(self, circuit_id: int) -> None:
         """Diagnose this circuit's newest record soon (once, however often it is submitted)."""
@@ -113,6 +116,9 @@ class Background:
                     _, problem = records.diagnose_circuit(circuit)
                     if problem:
                         log.info("circuit %s not diagnosed: %s", circuit_id, problem)
+                        self.failed[circuit_id] = records.record_hash(circuit)
+                    else:
+                        self.failed.pop(circuit_id, None)
             finally:
                 db.session.remove()
 

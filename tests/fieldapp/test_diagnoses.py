@@ -248,3 +248,18 @@ def test_inline_mode_answers_a_save_with_the_full_diagnosis(tester, make_circuit
     assert body["leading"]["verdict"]
     poll = tester.get(f"/api/circuits/{circuit_id}/diagnosis")
     assert poll.status_code == 200 and poll.get_json()["leading"] == body["leading"]
+
+
+def test_a_poll_stops_when_the_circuit_cannot_be_diagnosed(bg_app, login, monkeypatch):
+    from fieldapp import background, records
+
+    circuit_id = _bg_circuit(bg_app)
+    monkeypatch.setattr(records.diagnoses, "diagnosis_for",
+                        lambda record: (_ for _ in ()).throw(RuntimeError("engine down")))
+    client = bg_app.test_client()
+    login(client, "test")
+    first = client.get(f"/api/circuits/{circuit_id}/diagnosis")
+    assert first.status_code == 202
+    assert background.queue(bg_app).wait_idle(30)
+    again = client.get(f"/api/circuits/{circuit_id}/diagnosis")
+    assert again.status_code == 200 and again.get_json()["leading"] is None
