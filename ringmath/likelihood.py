@@ -46,7 +46,7 @@ LOG_CONTACT_PRIOR = np.log(CONTACT_PRIOR)
 CPC_FREE_BELOW = 0.6
 #: Prior probability, per outlet, of a high contact resistance at the socket (worn contacts,
 #: plug-in lead), by where the reading was taken (our working figures).
-CONTACT_FAULT_PRIOR = {"front": 0.06, None: 0.015, "terminals": 0.0005}
+CONTACT_FAULT_PRIOR = {"front": 0.12, None: 0.02, "terminals": 0.0005}
 #: Relative spread of r2/r1 about the tabulated ratio on a sound ring of one cable type
 #: (copper and sizes alike in every core; our working figure, common practice expects
 #: r2 ≈ 1.67 x r1 for 2.5/1.5 closely).

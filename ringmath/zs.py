@@ -76,8 +76,9 @@ def _r1r2(test: RingTest, outlet: Outlet, memo: dict) -> tuple[float | None, str
     """(R1+R2 in ohms, "measured" | "estimated" | None) for one outlet, memoised by id."""
     if outlet.id in memo:
         return memo[outlet.id]
-    if outlet.le_ohm is not None:
-        value = None if math.isinf(outlet.le_ohm) else (upper_bound_ohm(outlet.le_ohm), "measured")
+    if outlet.le_used_ohm is not None:  # the terminal re-measure when taken (CONTRACT.md)
+        le = outlet.le_used_ohm
+        value = None if math.isinf(le) else (upper_bound_ohm(le), "measured")
     elif outlet.on_ring:
         estimate = _ring_estimate_ohm(test)
         value = None if estimate is None else (estimate, "estimated")
@@ -122,7 +123,7 @@ def point_values(test: RingTest) -> tuple[dict, list[dict]]:
         r1r2, source = _r1r2(test, o, memo)
         zs = _zs(ze, r1r2)
         zs_max = None if point_limit is None else point_limit.zs_max_ohm
-        if o.le_ohm is not None and math.isinf(o.le_ohm):
+        if o.le_used_ohm is not None and math.isinf(o.le_used_ohm):
             ok = False
         else:
             ok = None if zs is None or zs_max is None else zs <= zs_max
