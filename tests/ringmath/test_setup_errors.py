@@ -28,7 +28,8 @@ def _record(n=10, ln_add=0.0, le_add=0.0, e2e_add=0.0, scale=1.0, **circuit):
     ln, le = _sound_readings(n)
     outlets = [{"id": f"s{i}", "label": f"Socket {i}", "kind": "twin_socket",
                 "spur_from": None, "ln": round(float(a) * scale + ln_add, 2),
-                "le": round(float(b) * scale + le_add, 2)} for i, (a, b) in enumerate(zip(ln, le))]
+                "le": round(float(b) * scale + le_add, 2)}
+               for i, (a, b) in enumerate(zip(ln, le, strict=True))]
     base = {"ocpd": dict(B32), "live_csa_mm2": 2.5, "cpc_csa_mm2": 1.5, "ze_ohm": 0.30,
             "ze_source": "measured", "earthing": "TN-C-S"}
     e2e = {"r1": round(R1 + e2e_add, 2), "rn": round(R1 + e2e_add, 2),
@@ -131,7 +132,7 @@ def test_steel_conduit_cpc_is_a_parallel_path_not_a_line_joint():
     record["end_to_end"] = {"r1": 0.31, "rn": 0.31, "r2": 0.03}
     ln, _ = _sound_readings(8, 0.31, 0.31, 0.03)
     _, le = _sound_readings(8, 0.31, 0.31, 0.03)
-    for o, a, b in zip(record["outlets"], ln, le):
+    for o, a, b in zip(record["outlets"], ln, le, strict=True):
         o["ln"], o["le"] = round(float(a), 2), round(float(b), 2)
     record["circuit"]["cpc_kind"] = "conduit"
     result = diagnose(record)
