@@ -40,15 +40,17 @@ from ringmath.network import Layout, step_resistance
 
 #: Prior probability of each kind of set-up error (our working figures); the rest is "none".
 SETUP_PRIORS = {"leads": 0.08, "offset_r": 0.02, "offset_ln": 0.025, "offset_le": 0.025,
-                "gain": 0.04, "scale": 0.004}
+                "gain": 0.04, "scale": 0.01}
 P_NONE = 1.0 - sum(SETUP_PRIORS.values())
 #: Offsets searched, ohms: over-nulled by 0.06 to 0.15 Ω not nulled (0 is "none").
 OFFSET_GRID_OHM = np.array([d for d in np.round(np.arange(-0.06, 0.1501, 0.01), 3) if d != 0])
 #: Small gains between step 1 and steps 2-3 (warmer cable, meter gain), fractions.
 GAIN_GRID = np.array([-0.06, -0.04, -0.02, 0.02, 0.04, 0.06, 0.08])
-#: Gross factors between step 1 and steps 2-3 that no wiring makes on every reading.
-SCALE_GRID = np.array([0.33, 0.4, 0.5, 0.6, 0.7, 0.8, 1.25, 1.4, 1.6, 1.8, 2.0, 2.25, 2.5,
-                       3.0])
+#: Gross factors between step 1 and steps 2-3 that no wiring makes on every reading: 0.33x to
+#: 3x, evenly in log steps of 1.5 % (fine enough that the nearest sits within a reading's
+#: noise), leaving out 0.8x-1.25x (the gain's range and beyond what temperature can do).
+_LOG_SCALE = np.arange(np.log(0.33), np.log(3.0) + 1e-9, 0.015)
+SCALE_GRID = np.exp(_LOG_SCALE[np.abs(_LOG_SCALE) >= np.log(1.25)])
 #: Positions on which the sound ring is evaluated for the search, and the contact sd of the
 #: grid (likelihood.CONTACT_SD_OHM index) it is searched at.
 G_SETUP = 24
