@@ -72,7 +72,8 @@ class Prepared:
     rn/r1 and r2/r1 from the conductor table (ratio_e as measured when ``cpc_free``).
     contact_prior: per ring outlet, the prior of a high socket contact (CONTACT_FAULT_PRIOR by
     where it was read). cpc_free: the cpc is metallic containment, has parallel paths, or r2 is
-    far below the cable's value: r2/r1 is then not a check of the cable.
+    far below the cable's value: r2/r1 is then not a check of the cable, and the finite step 3
+    readings are left out of the fit (they follow the metalwork, not the ring).
     """
 
     e2e_ohm: np.ndarray
@@ -131,15 +132,22 @@ def prepare(test: RingTest) -> Prepared:
         cpc_free = True
     if cpc_free and np.isfinite(r1) and np.isfinite(r2) and r1 > 0 and r2 > 0:
         ratio_e = r2 / r1
+    le_ring = np.array([_val(used_reading(o, "le")) for o in ring])
+    le_kids = np.array([_val(used_reading(o, "le")) for o in kids])
+    if cpc_free:
+        # through metalwork the step 3 readings follow the metal's route, not the ring cable's:
+        # they cannot test the ring, so only their OL readings are kept
+        le_ring = np.where(np.isinf(le_ring), le_ring, np.nan)
+        le_kids = np.where(np.isinf(le_kids), le_kids, np.nan)
     return Prepared(
         e2e_ohm=np.array([_val(e.r1_ohm), _val(e.rn_ohm), _val(e.r2_ohm)]),
         ring_ids=tuple(o.id for o in ring),
         ln_ohm=np.array([_val(used_reading(o, "ln")) for o in ring]),
-        le_ohm=np.array([_val(used_reading(o, "le")) for o in ring]),
+        le_ohm=le_ring,
         child_ids=tuple(o.id for o in kids),
         child_parent=np.array([index[o.spur_from] for o in kids], dtype=np.intp),
         child_ln_ohm=np.array([_val(used_reading(o, "ln")) for o in kids]),
-        child_le_ohm=np.array([_val(used_reading(o, "le")) for o in kids]),
+        child_le_ohm=le_kids,
         child_kn=np.array(kn),
         child_ke=np.array(ke),
         child_fused=np.array(fused, dtype=bool),
