@@ -10,7 +10,10 @@ Finding-code conventions the benchmark relies on (the diagnosis names its codes 
   readings that cannot all be true), ``setup_gain`` (steps 2–3 scaled against step 1, e.g. a
   warmer cable), ``setup_scatter`` (reading scatter too large to judge); any other
   ``setup_...`` code is a general "check the set-up" and is right for any set-up error.
-  The names in ``SETUP_ALIASES`` are accepted too;
+  The names in ``SETUP_ALIASES`` are set-up findings too (the diagnosis' own codes:
+  ``lead_offset``, ``step_offset``, ``end_to_end_zero`` -> leads; ``socket_contact`` ->
+  contacts; ``instrument_inconsistent`` -> instrument; ``step_gain`` -> gain;
+  ``readings_inconsistent`` -> any set-up error);
 * metallic cpc / parallel earth path: ``METALLIC_CODES``.
 
 A set-up error is scored "named as such" when the verdict is ``"retest"`` or the leading
@@ -25,8 +28,10 @@ from ringmath.simulate import FAULT_CODES
 
 FAULTS = set(FAULT_CODES)
 SETUP_PREFIX = "setup_"
-SETUP_ALIASES = {"lead_offset": "lead", "contact_resistance": "contacts",
+SETUP_ALIASES = {"lead_offset": "lead", "step_offset": "lead", "end_to_end_zero": "lead",
+                 "contact_resistance": "contacts", "socket_contact": "contacts",
                  "socket_contacts": "contacts", "instrument_scale": "instrument",
+                 "instrument_inconsistent": "instrument", "step_gain": "gain",
                  "readings_inconsistent": "any"}
 #: code fragment -> set-up error kind (for calibration: is the named kind really there?)
 SETUP_KINDS = (("lead", "lead"), ("contact", "contacts"), ("socket", "contacts"),

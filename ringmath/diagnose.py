@@ -255,8 +255,9 @@ def diagnose(record) -> dict:
     fitted_open = {f.conductor for f in fit_part["findings"] if f.code == "open_conductor"}
     e2e = [f for f in checks.end_to_end_findings(test)
            if not (f.code == "open_conductor" and f.conductor in fitted_open)]
+    zs_values = zs.point_values(test)  # once per diagnosis: circuit, points and Zs findings
     findings = (fit_part["findings"] + e2e + checks.spur_findings(test)
-                + rules.topology_findings(test) + zs.zs_findings(test))
+                + rules.topology_findings(test) + zs.zs_findings(test, zs_values))
     order = {"fault": 0, "warning": 1, "info": 2}
     findings.sort(key=lambda f: (f.code not in LEADING_CODES, order[f.severity],
                                  -(f.confidence or 0.0)))
@@ -266,7 +267,7 @@ def diagnose(record) -> dict:
                                         test.circuit.live_csa_mm2)
         if limit is not None:
             findings.append(limit)
-    circuit, points = zs.point_values(test)
+    circuit, points = zs_values
     for p in points:
         pos = fit_part["positions"].get(p["id"])
         p["position"] = None if pos is None or pos[0] is None else round(pos[0], 3)
