@@ -26,7 +26,7 @@ import numpy as np
 
 from ringmath import meter
 from ringmath.checks.expected import used_reading
-from ringmath.conductors import resistance_mohm_per_m
+from ringmath.conductors import resistance_mohm_per_m, spur_cable
 from ringmath.record import RingTest
 
 #: Probability that an "OL" is shown where the circuit is continuous, and vice versa.
@@ -48,12 +48,9 @@ CPC_FREE_BELOW = 0.6
 #: plug-in lead), by where the reading was taken (our working figures).
 CONTACT_FAULT_PRIOR = {"front": 0.12, None: 0.02, "terminals": 0.0005}
 #: Relative spread of r2/r1 about the tabulated ratio on a sound ring of one cable type
-#: (copper and sizes alike in every core; our working figure, common practice expects
-#: r2 ≈ 1.67 x r1 for 2.5/1.5 closely).
+#: (copper and sizes alike in every core; our working figure; the ratio itself is the
+#: conductor table's, 1.633 for 2.5/1.5 mm²).
 CPC_RATIO_TOL = 0.025
-#: The cpc that usually comes with a flat twin-and-earth cable of a given live csa, mm²
-#: (common practice: 1.0/1.0, 1.5/1.0, 2.5/1.5, 4/1.5, 6/2.5, 10/4).
-TWIN_AND_EARTH_CPC_MM2 = {1.0: 1.0, 1.5: 1.0, 2.5: 1.5, 4.0: 1.5, 6.0: 2.5, 10.0: 4.0}
 
 
 def t_grid(n: int) -> np.ndarray:
@@ -113,15 +110,9 @@ def prepare(test: RingTest) -> Prepared:
     kids = [o for o in test.outlets if o.spur_from in index]
     kn, ke, fused = [], [], []
     for o in kids:
-        live = o.spur_csa_mm2 or c.live_csa_mm2
-        if o.spur_cpc_csa_mm2 is not None:
-            cpc = o.spur_cpc_csa_mm2
-        elif o.spur_csa_mm2 is None:
-            cpc = c.cpc_csa_mm2
-        else:
-            cpc = TWIN_AND_EARTH_CPC_MM2.get(live, live)
+        cable = spur_cable(o.spur_csa_mm2, o.spur_cpc_csa_mm2, ring_live_csa_mm2=c.live_csa_mm2)
         kn.append(1.0)
-        ke.append(resistance_mohm_per_m(cpc) / resistance_mohm_per_m(live))
+        ke.append(cable.cpc_ohm_per_m / cable.live_ohm_per_m)
         fused.append(by_id[o.spur_from].kind == "fcu")
     e = test.end_to_end
     ratio_e = rho_e / rho_l
