@@ -22,10 +22,10 @@ from ringmath.setup_errors import Setup
 #: readings call for a check of the terminations (common practice: r1 and rn within 0.05 Ω;
 #: 0.06-0.10 Ω is noted and the terminations checked).
 JOINT_FAULT_OHM = 0.10
-#: Set-up offsets beyond this (ohms, either sign) call for a re-test: up to it a sound ring
-#: is still judged sound (common practice tolerates readings within 0.05 Ω); from
-#: OFFSET_NOTE_OHM they are noted. The estimate carries about 0.01 Ω of error itself.
-OFFSET_RETEST_OHM = 0.065
+#: A set-up offset calls for a re-test when it is at least this probable that it is beyond
+#: setup_errors.OFFSET_TOLERATED_OHM (0.05 Ω, the readings' common-practice tolerance); offsets
+#: from OFFSET_NOTE_OHM are otherwise noted.
+OFFSET_RETEST_P = 0.8
 OFFSET_NOTE_OHM = 0.025
 #: Gains between steps worth a note (fraction).
 GAIN_NOTE = 0.03
@@ -72,7 +72,7 @@ def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | 
     d = setup.offset_ohm
     if abs(d) < OFFSET_NOTE_OHM:
         return None
-    severity = "warning" if abs(d) >= OFFSET_RETEST_OHM else "info"
+    severity = "warning" if setup.p_beyond >= OFFSET_RETEST_P else "info"
     if setup.kind == "leads":
         msg, nxt = setup_messages.lead_offset(d, ratios)
         return Finding("setup_lead_offset", severity, msg, nxt, confidence=confidence)
