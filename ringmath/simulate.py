@@ -236,9 +236,8 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
             true = true_readings(wiring, keys)
         site = true_readings(wiring, keys, warm=n.warm, contacts=contacts) \
             if (n.warm or contacts) else true
-        worn = {oid: (site[keys.index(("ln", "ln", oid))] - true[keys.index(("ln", "ln", oid))],
-                      site[keys.index(("le", "le", oid))] - true[keys.index(("le", "le", oid))])
-                for oid in contacts}
+        # the contacts are in series with the probes: each reading gains its two pins' ohms
+        worn = {oid: (c_l + c_n, c_l + c_e) for oid, (c_l, c_n, c_e) in contacts.items()}
     else:
         site, noise = true, np.zeros(len(keys))
     wired = edges(wiring)

@@ -129,6 +129,14 @@ def test_worn_socket_contacts_add_to_those_outlets_only():
     assert [o.taken_at for o in parsed.outlets] == [o["taken_at"] for o in worn["outlets"]]
 
 
+def test_worn_contacts_on_a_warmer_day_add_only_their_own_ohms():
+    warm, _ = _sim(7, None, ideal_meter=True, nuisance=Nuisance(warm=0.03))
+    both, truth = _sim(7, None, ideal_meter=True, nuisance=Nuisance(warm=0.03, worn=2))
+    for a, b in zip(warm["outlets"], both["outlets"], strict=True):
+        extra = truth.worn_ohm.get(b["id"], (0.0, 0.0))
+        assert (b["ln"] - a["ln"], b["le"] - a["le"]) == pytest.approx(extra, abs=1e-6)
+
+
 def test_a_re_measure_at_the_terminals_reads_without_the_socket_contacts():
     clean, _ = _sim(7, None, ideal_meter=True, nuisance=Nuisance(lead_ohm=0.03))
     again, truth = _sim(7, None, ideal_meter=True,
