@@ -25,12 +25,13 @@ outlet count and spacing, spurs and fused spurs, shuffled visiting order) and pr
   ``os.getloadavg()`` beside it.
 
 Run: ``.venv/bin/python bench/diagnosis.py [--quick] [--n N] [--healthy N] [--seed S]
-[--conditions clean,typical,...] [--show CODE|healthy|setup] [--list]``.
+[--conditions clean,typical,...] [--show CODE|healthy|setup] [--json FILE] [--list]``.
 """
 
 from __future__ import annotations
 
 import argparse
+import json
 import math
 import os
 import statistics
@@ -240,6 +241,7 @@ def main() -> None:
     parser.add_argument("--conditions", default="", help="comma-separated condition keys")
     parser.add_argument("--quick", action="store_true", help="a few minutes on two cores")
     parser.add_argument("--list", action="store_true", help="list the conditions and stop")
+    parser.add_argument("--json", metavar="FILE", help="also write the summary figures as JSON")
     parser.add_argument("--show", metavar="WHAT", help="print the cases judged wrong: a fault"
                         " code, 'healthy' (false alarms) or 'setup' (set-up errors not named)")
     args = parser.parse_args()
@@ -267,6 +269,15 @@ def main() -> None:
     print_summary(summary, every)
     ms20 = timing(np.random.default_rng([args.seed, 999]), 5 if args.quick else 15)
     print_targets(summary, every, ms20)
+    if args.json:
+        claims = [r["claim"] for r in every if r["claim"] and r["claim"][1] is not None]
+        table, brier = calibration(claims)
+        doc = {"seed": args.seed, "n": n, "healthy": healthy, "load": os.getloadavg(),
+               "conditions": summary, "ms_20_outlets": ms20, "brier": brier,
+               "calibration": [dict(zip(("lo", "hi", "count", "stated", "observed"), row,
+                                        strict=True)) for row in table]}
+        text = json.dumps(doc, indent=1, default=float).replace("NaN", "null")
+        Path(args.json).write_text(text + "\n", encoding="utf-8")
 
 
 if __name__ == "__main__":
