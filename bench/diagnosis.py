@@ -5,7 +5,9 @@ nulled on every reading or on one step, a warmer cable for steps 2–3, worn soc
 from the front, a metallic cpc, an unsuitable meter, two faults at once, the typical site and
 a random site mix) it simulates healthy rings and rings with each fault class
 (``ringmath.simulate``: exact nodal analysis of a named-node netlist, random ring length,
-outlet count and spacing, spurs and fused spurs, shuffled visiting order) and prints:
+outlet count and spacing, spurs and fused spurs, shuffled visiting order; a third of the open
+conductors are one outlet's core off its terminal, which reads like swapped terminals) and
+prints:
 
 * healthy rings: false alarms (verdict not "satisfactory"); "wiring" = a wiring fault
   (fault severity) named at all, and at >= 80 % confidence; how many were called "retest";
@@ -87,7 +89,10 @@ def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: in
         if cond.pairs and code is not None:
             others = [c for c in FAULT_CODES if c != code]
             also = others[int(rng.integers(0, len(others)))]
-        record, truth = simulate(rng, code, also=also, nuisance=cond.draw(rng))
+        picks = {}
+        if code == "open_conductor" and rng.random() < 1 / 3:
+            picks["at"] = "terminal"  # one outlet's core off its terminal: reads like a swap
+        record, truth = simulate(rng, code, also=also, nuisance=cond.draw(rng), **picks)
         t0 = time.perf_counter()
         result = diagnose(record)
         row = score(result, truth, record, hand_rule(record))
