@@ -300,10 +300,12 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
     ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict"), "")
                       if ctx["summary"]["result"] == _pass_word(True) else "")
     ctx["findings"] = _findings(diagnosis, _numbers(rec, diagnosis))
-    ctx["picture"] = ring_picture(diagnosis) if diagnosis else Markup("")
+    numbered = {k: str(v) for k, v in _numbers(rec, diagnosis).items()}
+    ctx["picture"] = ring_picture(diagnosis, names=numbered) if diagnosis else Markup("")
     # the printed sheet's picture leaves out the drawing's own key: the sheet lists the points
     # beside it (``key``) and prints the findings in full
-    ctx["sketch"] = ring_picture(diagnosis, key=False) if diagnosis else Markup("")
+    ctx["sketch"] = (ring_picture(diagnosis, key=False, names=numbered) if diagnosis
+                     else Markup(""))
     ctx["key"] = _key_rows(ctx["outlets"])
     return ctx
 
