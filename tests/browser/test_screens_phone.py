@@ -147,3 +147,23 @@ def test_a_slipped_decimal_point_is_one_tap_to_fix(apprentice, live_app):
     other.locator("[data-slip]").get_by_role("button", name="keep 2.6 Ω").tap()
     expect(other.locator("[data-value]")).to_have_text("2.60 Ω")
     assert stored(live_app, cid, "b") == "2.6"
+
+
+def test_without_the_server_the_page_asks_the_same_question(apprentice, live_app):
+    """The network fails on the way: the card's own band (the server's, on data-low/high)
+    asks about the slip before anything is queued."""
+    page = apprentice
+    _, cid = seed(live_app, [{"id": "a", "label": "Kitchen", "kind": "twin_socket"}])
+    page.goto(f"/circuits/{cid}/test/ln")
+    page.route("**/api/circuits/*/readings", lambda route: route.abort())
+    box = page.locator("article#r-ln-a")
+    box.locator("input[name='value']").fill("0.026")
+    box.get_by_role("button", name="Save").tap()
+    question = box.locator("[data-slip]")
+    expect(question).to_contain_text("Decimal point slipped?")
+    expect(question.get_by_role("button")).to_have_text(["0.26 Ω", "keep 0.026 Ω"])
+    assert page.evaluate("window.ringtestSlip.check(document.querySelector("
+                         "'#r-ln-a form.reading-form'), '2.6').suggested") == "0.26"
+    assert page.evaluate("window.ringtestSlip.check(document.querySelector("
+                         "'#r-ln-a form.reading-form'), '0.27')") is None
+    assert stored(live_app, cid, "a") is None
