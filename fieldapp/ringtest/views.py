@@ -9,7 +9,6 @@ from __future__ import annotations
 
 from flask import abort, flash, redirect, render_template, request, url_for
 from flask_login import login_required
-from sqlalchemy import select
 
 from fieldapp import changes, readings
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
@@ -17,6 +16,7 @@ from fieldapp.extensions import db
 from fieldapp.labels import outlet_name
 from fieldapp.models import STEPS, Outlet, User, utcnow
 from fieldapp.readings import anchor_for
+from fieldapp.review.diary import circuit_diary
 from fieldapp.ringtest import bp
 from fieldapp.ringtest.errors import outlet_error, spur_error
 from fieldapp.ringtest.flashes import flash_saved
@@ -32,6 +32,7 @@ from fieldapp.ringtest.pages import (
 )
 from fieldapp.ringtest.text import READING_STEPS, STEP_INFO
 from fieldapp.web import actor
+from ringmath.messages import CAUTIONS
 
 
 @bp.get("/<int:circuit_id>/test")
@@ -101,6 +102,9 @@ def save_reading(circuit_id: int):
     form = ReadingForm()
     field = form.field.data or ""
     if field not in changes.READING_FIELDS or not form.validate_on_submit():
+        if field in changes.READING_FIELDS and set(form.errors) == {"value"}:
+            # too long to be a reading: the form with its message
+            return render_step(circuit, readings.step_of(field), bad=form, status=422)
         abort(400)
     step = readings.step_of(field)
     outlet = (readings.find_outlet(circuit, form.outlet.data)
@@ -245,11 +249,5 @@ def results(circuit_id: int):
 @login_required
 def history(circuit_id: int):
     circuit = get_circuit(circuit_id)
-    keys = dict(db.session.execute(
-        select(Outlet.id, Outlet.key).where(Outlet.circuit_id == circuit.id)).all())
-    users = {u.id: u.name for u in db.session.scalars(select(User))}
-    rows = [{"row": r, "what": ("circuit" if r.entity == "circuit" else
-                                f"outlet {keys.get(r.entity_id, r.entity_id)}"),
-             "who": users.get(r.user_id, "—")} for r in changes.history(circuit)]
     return render_template("ringtest/history.html", circuit=circuit, job=circuit.job,
-                           rows=rows)
+                           rows=circuit_diary(circuit), cautions=CAUTIONS)
