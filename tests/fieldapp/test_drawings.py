@@ -716,3 +716,6 @@ def test_a_sheet_may_number_the_symbols_itself():
         shown = texts(parse(draw(diag, names=numbered)))
         assert all(n in shown for n in numbered.values())
     assert drawings.point_names(diag) == {p["id"]: p["id"] for p in diag["points"]}
+    named = {**diag, "points": [{**p, "name": numbered[p["id"]]} for p in diag["points"]]}
+    shown = texts(parse(drawings.ring_picture(named, key=False)))
+    assert all(n in shown for n in numbered.values())
