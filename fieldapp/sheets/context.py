@@ -301,12 +301,15 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
     ctx["findings"] = _findings(diagnosis, _numbers(rec, diagnosis))
     # one drawing per circuit: the screen's picture with its own key, or the printed one
     # without (the schedule beside it carries the numbers, the findings are printed in full)
+    numbers = _numbers(rec, diagnosis)  # the drawing names each point by the schedule's No.
+    named = {**diagnosis, "points": [{**p, "name": str(numbers.get(str(p.get("id")), ""))}
+                                     for p in diagnosis.get("points") or []]} if diagnosis else {}
     ctx["picture"] = Markup("")
     ctx["sketch"] = ""
     if diagnosis and drawing == "screen":
-        ctx["picture"] = ring_picture(diagnosis)
+        ctx["picture"] = ring_picture(named)
     elif diagnosis and drawing == "print":
-        ctx["sketch"] = sketch_uri(ring_picture(diagnosis, key=False))
+        ctx["sketch"] = sketch_uri(ring_picture(named, key=False))
     ctx["live"] = live_summary(rec, diagnosis or None)
     return ctx
 
