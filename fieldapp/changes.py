@@ -107,7 +107,8 @@ def reading_text(value: float | None) -> str | None:
 
 #: Job fields that submitting, reviewing and reopening change: writable on a locked job.
 REVIEW_FIELDS = ("status", "submitted_at", "reviewed_by_id", "reviewed_at", "review_comment",
-                 "approved_by_id", "approved_at")
+                 "approved_by_id", "approved_at", "submit_reason", "approve_reason",
+                 "submit_problems", "approve_problems")
 
 
 def _job_of(obj) -> Job | None:
@@ -132,16 +133,34 @@ def check_writable(obj, field: str) -> None:
         check_editable(job, _circuit_id(obj))
 
 
-def log(obj, field: str, old, new, actor: Actor, client_id: str | None = None) -> ChangeLog:
-    """Append one ChangeLog row for obj.field (old -> new); Refused on a locked job."""
+def log(obj, field: str, old, new, actor: Actor, client_id: str | None = None,
+        taken_at: dt.datetime | None = None) -> ChangeLog:
+    """Append one ChangeLog row for obj.field (old -> new); Refused on a locked job.
+    taken_at: when a reading queued on the phone was taken (else it was taken as it arrived)."""
     check_writable(obj, field)
     row = ChangeLog(
         at=utcnow(), user_id=actor.user_id, device=(actor.device or "")[:200],
         entity=entity_name(obj), entity_id=obj.id, circuit_id=_circuit_id(obj), field=field,
         old_value=as_text(old), new_value=as_text(new), client_id=client_id,
+        taken_at=taken_time(taken_at),
     )
     db.session.add(row)
     return row
+
+
+def taken_time(value) -> dt.datetime | None:
+    """A taken-at time (datetime or ISO text, with or without a zone) as naive UTC; None stays
+    None; ValueError for text that is not an ISO time."""
+    if value in (None, ""):
+        return None
+    if isinstance(value, str):
+        try:
+            value = dt.datetime.fromisoformat(value.replace("Z", "+00:00"))
+        except ValueError:
+            raise ValueError(f"taken_at: {value!r} is not an ISO date and time") from None
+    if value.tzinfo is not None:
+        value = value.astimezone(dt.UTC).replace(tzinfo=None)
+    return value
 
 
 def update(obj, values: dict, actor: Actor) -> list[str]:
@@ -211,7 +230,7 @@ def safety_confirmed(circuit: Circuit) -> bool:
 
 
 def set_reading(circuit: Circuit, field: str, raw, actor: Actor, *, outlet: Outlet | None = None,
-                client_id: str | None = None) -> ReadingWrite:
+                client_id: str | None = None, taken_at=None) -> ReadingWrite:
     """Store one reading (raw as typed: "0.52", "0,52", "OL", a number, or None to clear).
 
     ValueError (nothing changed) for a bad value; a known client id is a no-op duplicate.
@@ -219,6 +238,7 @@ def set_reading(circuit: Circuit, field: str, raw, actor: Actor, *, outlet: Outl
     replay of the same id can never undo a later correction.
     """
     client_id = check_client_id(client_id)
+    taken_at = taken_time(taken_at)
     target = _reading_target(circuit, field, outlet)
     path = field if outlet is None else f"{outlet.key}.{field}"
     new = reading_text(parse_reading(raw, path))
@@ -229,7 +249,7 @@ def set_reading(circuit: Circuit, field: str, raw, actor: Actor, *, outlet: Outl
     if old == new and client_id is None:
         return ReadingWrite(field, old, new)
     setattr(target, field, new)
-    log(target, field, old, new, actor, client_id)
+    log(target, field, old, new, actor, client_id, taken_at)
     try:
         db.session.flush()
     except IntegrityError:  # the same id arrived twice at once: the other one won

@@ -21,6 +21,7 @@ from fieldapp.jobs import bp
 from fieldapp.jobs.forms import CircuitForm, JobForm, SubmitJobForm, circuit_form_data
 from fieldapp.models import Circuit, Job, User, utcnow
 from fieldapp.web import actor, get_or_404, options
+from ringmath.messages import CAUTIONS
 
 
 def _tester_choices() -> list:
@@ -43,6 +44,8 @@ def _job_values(form: JobForm) -> dict:
         "reference": form.reference.data.strip(), "site": form.site.data.strip(),
         "client": (form.client.data or "").strip(), "date": form.date.data,
         "tester_id": form.tester_id.data or None, "notes": (form.notes.data or "").strip(),
+        "instrument_model": (form.instrument_model.data or "").strip() or None,
+        "instrument_serial": (form.instrument_serial.data or "").strip() or None,
     }
 
 
@@ -153,10 +156,23 @@ def submit(job_id: int):
     if form.validate_on_submit():
         if not job.circuits:
             flash("Add and test at least one circuit before submitting.", "error")
-        else:
-            changes.update(job, {"status": "submitted", "submitted_at": utcnow()}, actor())
-            db.session.commit()
-            flash(f"Job {job.reference} submitted for review.", "ok")
+            return redirect(url_for("jobs.detail", job_id=job.id))
+        # a job with problems (fieldapp/review/gate.py) goes on only with a typed reason;
+        # imported here: the review package imports the transfer one, which imports jobs
+        from fieldapp.review.forms import REASON_NEEDED
+        from fieldapp.review.signoff import sign_off
+
+        problems, done = sign_off(job, "submit", {"status": "submitted",
+                                                  "submitted_at": utcnow()},
+                                  form.reason.data, actor())
+        if not done:
+            if request.form.get("reason") is not None:
+                form.reason.errors = [REASON_NEEDED]
+            return render_template("review/signoff.html", job=job, form=form,
+                                   problems=problems, cautions=CAUTIONS), 422
+        db.session.commit()
+        flash(f"Job {job.reference} submitted for review"
+              f"{' with the reason given' if problems else ''}.", "ok")
     return redirect(url_for("jobs.detail", job_id=job.id))
 
 
