@@ -56,7 +56,8 @@ SUBMIT = [
 @pytest.mark.parametrize("owner, who, allowed", SUBMIT)
 def test_who_may_submit(app, people, logged_in, make_circuit, owner, who, allowed):
     job_id = _job(app, make_circuit, people[owner])
-    response = logged_in(who).post(f"/jobs/{job_id}/submit")
+    response = logged_in(who).post(f"/jobs/{job_id}/submit",
+                                   data={"reason": "ownership check: readings to follow"})
     assert response.status_code == (302 if allowed else 403)
     assert _status(app, job_id)[0] == ("submitted" if allowed else "in_progress")
 
