@@ -26,6 +26,8 @@ from ringmath import parse_reading
 CIRCUIT_READINGS = ("r1", "rn", "r2")
 OUTLET_READINGS = ("ln", "le")
 READING_FIELDS = CIRCUIT_READINGS + OUTLET_READINGS
+#: Outlet readings of the live tests step: measured Zs and a re-measure at the terminals.
+LIVE_OUTLET_READINGS = ("zs_measured", "ln_terminals", "le_terminals")
 #: Job statuses in which readings and details may still change.
 EDITABLE_STATUSES = ("in_progress", "returned")
 CLIENT_ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_-]{7,63}$")
@@ -266,11 +268,12 @@ def _reading_target(circuit: Circuit, field: str, outlet: Outlet | None):
         if outlet is not None:
             raise ValueError(f"{field}: an end-to-end reading belongs to the circuit")
         return circuit
-    if field in OUTLET_READINGS:
+    if field in OUTLET_READINGS + LIVE_OUTLET_READINGS:
         if outlet is None or outlet.circuit_id != circuit.id or outlet.deleted_at is not None:
             raise ValueError(f"{field}: needs an outlet of this circuit")
         return outlet
-    raise ValueError(f"step: {field!r} is not one of {', '.join(READING_FIELDS)}")
+    known = READING_FIELDS + LIVE_OUTLET_READINGS
+    raise ValueError(f"step: {field!r} is not one of {', '.join(known)}")
 
 
 def live_outlets(circuit: Circuit) -> list[Outlet]:
@@ -319,7 +322,7 @@ def add_outlet(circuit: Circuit, values: dict, actor: Actor,
 
 def edit_outlet(outlet: Outlet, values: dict, actor: Actor) -> list[str]:
     """Change an outlet's details (not its readings: use set_reading)."""
-    if set(values) & set(OUTLET_READINGS):
+    if set(values) & set(OUTLET_READINGS + LIVE_OUTLET_READINGS):
         raise ValueError("readings change through set_reading")
     _check_spur_source(outlet.circuit, values.get("spur_from_key"), outlet)
     return update(outlet, values, actor)

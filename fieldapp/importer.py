@@ -12,6 +12,7 @@ from sqlalchemy import select
 
 from fieldapp import changes
 from fieldapp.extensions import db
+from fieldapp.live.values import live_circuit_fields
 from fieldapp.models import Circuit, Job, Outlet, utcnow
 from ringmath import parse_document, parse_reading
 
@@ -38,6 +39,7 @@ def circuit_fields(block: dict) -> dict:
         "ze_source": block.get("ze_source") or "measured",
         "earthing": block.get("earthing") or None,
         "cable_length_m": block.get("cable_length_m"),
+        **live_circuit_fields(block),
     }
 
 
@@ -46,7 +48,7 @@ def _outlet_fields(doc: dict) -> dict:
         "key": str(doc["id"]), "label": doc.get("label") or "",
         "kind": doc.get("kind") or "twin_socket", "spur_from_key": doc.get("spur_from") or None,
         "fuse_a": doc.get("fuse_a"), "spur_csa_mm2": doc.get("spur_csa_mm2"),
-        "spur_cpc_csa_mm2": doc.get("spur_cpc_csa_mm2"),
+        "spur_cpc_csa_mm2": doc.get("spur_cpc_csa_mm2"), "taken_at": doc.get("taken_at") or None,
     }
 
 
@@ -90,7 +92,8 @@ def import_circuit(job: Job, record: dict, actor: changes.Actor, position: int) 
     rows = []
     for n, doc in enumerate(record.get("outlets") or (), start=1):
         row = {"circuit_id": circuit.id, "position": n, **_outlet_fields(doc)}
-        row.update(_readings(doc, changes.OUTLET_READINGS, f"outlets[{n - 1}]"))
+        row.update(_readings(doc, changes.OUTLET_READINGS + changes.LIVE_OUTLET_READINGS,
+                             f"outlets[{n - 1}]"))
         rows.append(row)
     if rows:
         _create_all(Outlet, rows, actor)

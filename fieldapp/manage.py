@@ -148,26 +148,26 @@ def main(argv=None) -> int:
     sub.add_parser("setup", help="create/upgrade the database, demo users and demo jobs")
     reset = sub.add_parser("reset-password", help="give a user a new random password")
     reset.add_argument("username")
+    run = sub.add_parser("run", help="setup, then serve; the logins are printed last")
+    run.add_argument("--host", default="127.0.0.1")
+    run.add_argument("--port", type=int, default=5000)
     save = sub.add_parser("backup", help="write the whole database to FILE as JSON")
     save.add_argument("file")
     save.add_argument("--with-passwords", action="store_true",
                       help="include the password hashes (keep that file safe)")
     load = sub.add_parser("restore", help="load a backup FILE into an empty database")
     load.add_argument("file")
-    run = sub.add_parser("run", help="setup, then serve; the logins are printed last")
-    run.add_argument("--host", default="127.0.0.1")
-    run.add_argument("--port", type=int, default=5000)
     args = parser.parse_args(argv)
     if args.command == "setup":
         setup()
+        return 0
+    if args.command == "run":
+        serve(args.host, args.port)
         return 0
     if args.command == "backup":
         return backup_command(args.file, args.with_passwords)
     if args.command == "restore":
         return restore_command(args.file)
-    if args.command == "run":
-        serve(args.host, args.port)
-        return 0
     return reset_password(args.username)
 
 

@@ -6,8 +6,9 @@ outlet-level faults (``local``), plus the log prior of its set-up: "as read" (``
 the best set-up error (``setup_errors.fit_setup``), whose version of every hypothesis is fitted
 on the corrected readings, with the set-up's log prior, the Occam factor of its parameter and
 the Jacobian of the correction added. The normalised exp(score) over all combinations is the
-posterior used for every confidence: a finding's confidence adds the weight of every combination that contains it, so a
-set-up error that explains the readings nearly as well takes its share.
+posterior used for every confidence: a finding's confidence adds the weight of every
+combination that contains it, so a set-up error that explains the readings nearly as well
+takes its share.
 """
 
 from __future__ import annotations

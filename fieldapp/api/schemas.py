@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from marshmallow import EXCLUDE, Schema, ValidationError, fields, validate
 
-from fieldapp.changes import CLIENT_ID_PATTERN, READING_FIELDS
+from fieldapp.changes import CLIENT_ID_PATTERN, LIVE_OUTLET_READINGS, READING_FIELDS
 from fieldapp.limits import MAX_READING_CHARS
 
 
@@ -34,7 +34,8 @@ class ReadingIn(Schema):
     class Meta:
         unknown = EXCLUDE  # a newer client may send more; what we know is checked strictly
 
-    step = fields.String(required=True, validate=validate.OneOf(READING_FIELDS))
+    step = fields.String(required=True,
+                         validate=validate.OneOf(READING_FIELDS + LIVE_OUTLET_READINGS))
     outlet = fields.String(load_default=None, allow_none=True, validate=validate.Length(max=16))
     value = fields.Raw(required=True, allow_none=True, validate=_reading_shape)
     client_id = fields.String(required=True, validate=validate.Regexp(

@@ -17,6 +17,7 @@ import re
 from markupsafe import Markup
 
 from fieldapp.drawings import KIND_WORDS, point_numbers, ring_picture
+from fieldapp.live.feedback import live_summary
 from ringmath.messages import CAUTIONS
 
 VERDICT_WORDS = {
@@ -306,6 +307,7 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         ctx["picture"] = ring_picture(diagnosis)
     elif diagnosis and drawing == "print":
         ctx["sketch"] = sketch_uri(ring_picture(diagnosis, key=False))
+    ctx["live"] = live_summary(rec, diagnosis or None)
     return ctx
 
 
