@@ -23,8 +23,8 @@ from marshmallow import RAISE, Schema, ValidationError, fields, validate, valida
 from fieldapp import limits
 from fieldapp.choices import BREAKER_STANDARDS, CURVES, OCPD_STANDARDS, RATINGS_A, RCD_MA
 from fieldapp.choices import RCD_TYPES as RCD_TYPE_CHOICES
-from fieldapp.live.values import CPC_KINDS, TAKEN_AT
 from ringmath import record
+from ringmath.record import CPC_KINDS, TAKEN_AT
 
 OL = "OL"
 #: The readings of an outlet, each parsed by ringmath on its own.
