@@ -68,6 +68,12 @@ class Job(db.Model):
     review_comment: Mapped[str | None] = mapped_column(Text)
     approved_by_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
     approved_at: Mapped[dt.datetime | None]
+    #: The test instrument used, as the tester typed it.
+    instrument_model: Mapped[str | None] = mapped_column(String(80))
+    instrument_serial: Mapped[str | None] = mapped_column(String(60))
+    #: Why the job was submitted / approved although it had problems (fieldapp/review/gate.py).
+    submit_reason: Mapped[str | None] = mapped_column(Text)
+    approve_reason: Mapped[str | None] = mapped_column(Text)
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     updated_at: Mapped[dt.datetime] = mapped_column(default=utcnow, onupdate=utcnow)
 
@@ -177,6 +183,8 @@ class ChangeLog(db.Model):
     new_value: Mapped[str | None] = mapped_column(Text)
     #: The idempotency key a client sent with the write; unique where present.
     client_id: Mapped[str | None] = mapped_column(String(64), unique=True)
+    #: When the reading was taken on the phone, when it was queued offline (UTC, naive).
+    taken_at: Mapped[dt.datetime | None]
 
     user: Mapped[User | None] = relationship()
 

@@ -82,23 +82,16 @@ def note_progress(circuit: Circuit, step: str, who: changes.Actor) -> None:
 
 
 def error_kind(error: ValueError) -> str:
-    """ringmath's kind of a parse error ("format", "range", ...). The core's RecordError carries
-    ``.kind``; for a plain ValueError the kind is read from its text, here and nowhere else."""
-    kind = getattr(error, "kind", None)
-    if kind:
-        return str(kind)
-    text = str(error)
-    if "below the lowest" in text or "above the highest" in text:
-        return "range"
-    return "format"
+    """ringmath's kind of a parse error ("format", "range", ...: ``RecordError.kind``)."""
+    return str(getattr(error, "kind", None) or "format")
 
 
 def reading_message(error: ValueError, raw=None) -> str:
     """A parse error in plain words for the person who typed the reading."""
     kind = error_kind(error)
     shown = f"“{str(raw).strip()}”" if raw not in (None, "") else "That"
-    number = _number(raw)
     if kind == "range":
+        number = _number(raw)
         if number is not None and number < 0:
             return "A resistance cannot be negative. Check the reading and the meter's leads."
         return (f"{shown} Ω is far above any ring reading. If the meter shows over-range, "

@@ -2,10 +2,14 @@
 
 from __future__ import annotations
 
+import logging
+
 from fieldapp.changes import live_outlets
 from fieldapp.diagnoses import diagnosis_for
 from fieldapp.models import Circuit, Job
 from ringmath import FORMAT
+
+log = logging.getLogger(__name__)
 
 
 def reading_value(text: str | None):
@@ -110,4 +114,8 @@ def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
     try:
         return diagnosis_for(record), None
     except ValueError as error:
+        log.info("diagnosis of circuit %s refused: %s", circuit.id, error)
         return None, f"The record cannot be diagnosed yet: {error}"
+    except Exception:  # one bad circuit must never take a page or the job list down
+        log.exception("diagnosis of circuit %s failed", circuit.id)
+        return None, "The diagnosis failed for this circuit; the readings are kept."

@@ -81,7 +81,12 @@ def post_reading(circuit_id: int):
         body = {"errors": {bad.field: [bad.message]}, "kind": bad.kind}
         if bad.slip is not None:
             body["slip"] = {"typed": bad.slip.typed, "suggested": bad.slip.suggested,
+                            "expected_ohm": bad.slip.expected_ohm,
                             "question": bad.slip.question}
+            body["html"] = {"slip": render_template(
+                "ringtest/_slip.html", slip=bad.slip, circuit_id=circuit.id,
+                field=data["step"], key=data["outlet"] if outlet is not None else None,
+                client_id=data["client_id"])}
         return jsonify(body), 422 if bad.slip is not None else 400
     return jsonify(ReadingOut().dump(_reading_reply(circuit, data, result))), 200
 

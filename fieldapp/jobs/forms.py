@@ -43,6 +43,11 @@ class JobForm(FlaskForm):
     date = DateField("Test date", validators=[Optional()])
     tester_id = SelectField("Tester", coerce=int, validators=[Optional()])
     notes = TextAreaField("Notes", validators=[Optional(), Length(max=4000)])
+    instrument_model = StringField(
+        "Test instrument", validators=[Optional(), Length(max=80)],
+        description="Make and model as on the instrument; printed on the job sheet")
+    instrument_serial = StringField("Instrument serial number",
+                                    validators=[Optional(), Length(max=60)])
     submit = SubmitField("Save job")
 
 
@@ -124,5 +129,7 @@ def circuit_form_data(circuit) -> dict:
 
 
 class SubmitJobForm(FlaskForm):
+    reason = TextAreaField("Why submit it with these problems", validators=[
+        Optional(), Length(max=2000)])
     submit = SubmitField("Submit for review")
 

@@ -321,6 +321,13 @@ class JobDocumentSchema(StrictSchema):
         validate.Length(max=limits.MAX_CIRCUITS_PER_JOB,
                         error=f"at most {limits.MAX_CIRCUITS_PER_JOB} circuits in one job")])
 
+    @validates_schema
+    def _outlets_in_job(self, data, **_kwargs):
+        total = sum(len(rec.get("outlets") or ()) for rec in data.get("circuits") or ())
+        if total > limits.MAX_OUTLETS_PER_JOB:
+            raise ValidationError(f"at most {limits.MAX_OUTLETS_PER_JOB} outlets in one job, "
+                                  f"this file has {total}", "circuits")
+
 
 # ---------------------------------------------------------------- error reporting
 
@@ -401,6 +408,10 @@ def _too_big(doc) -> bool:
     if not isinstance(circuits, list):
         return False
     if len(circuits) > limits.MAX_CIRCUITS_PER_JOB:
+        return True
+    lengths = [len(rec["outlets"]) for rec in circuits
+               if isinstance(rec, dict) and isinstance(rec.get("outlets"), list)]
+    if sum(lengths) > limits.MAX_OUTLETS_PER_JOB:
         return True
     return any(isinstance(rec, dict) and isinstance(rec.get("outlets"), list)
                and len(rec["outlets"]) > limits.MAX_OUTLETS_PER_CIRCUIT for rec in circuits)

@@ -194,7 +194,8 @@ def test_decimal_comma_and_ol_strings_are_read():
 def test_zero_end_to_end_reading_is_a_warning_not_a_crash():
     result = diagnose(_record(_healthy_outlets(), e2e={"r1": 0.0, "rn": 0.52, "r2": 0.85}))
     assert "end_to_end_zero" in [f["code"] for f in result["findings"]]
-    assert result["verdict"] == "investigate"
+    # a 0.00 Ω end-to-end reading is a set-up error (ends touching, leads measured): re-test
+    assert result["verdict"] == "retest"
 
 
 def test_open_cpc_with_ol_outlets_and_fused_spur_raises_no_numeric_warning():

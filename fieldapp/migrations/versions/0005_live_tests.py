@@ -5,7 +5,7 @@ where the readings were taken and a re-measure at the terminals on each outlet.
 Readings are text as recorded ("0.52", "OL", NULL); insulation resistance keeps ">999".
 
 Revision ID: 0005
-Revises: 0006
+Revises: 0004
 Create Date: 2026-12-02
 """
 
@@ -13,7 +13,7 @@ import sqlalchemy as sa
 from alembic import op
 
 revision = "0005"
-down_revision = "0006"
+down_revision = "0004"
 branch_labels = None
 depends_on = None
 
