@@ -53,6 +53,18 @@ USER_FIELDS = ("tester_id", "created_by", "reviewed_by_id", "approved_by_id",
 UNITS = {"ocpd_rating_a": "A", "fuse_a": "A", "rcd_rated_ma": "mA", "live_csa_mm2": "mm²",
          "cpc_csa_mm2": "mm²", "spur_csa_mm2": "mm²", "spur_cpc_csa_mm2": "mm²",
          "cable_length_m": "m", "ze_ohm": "Ω"}
+#: The live tests and the schedule fields beside the ring test (fieldapp.live).
+READING_FIELDS += ("zs_measured", "ln_terminals", "le_terminals")
+FIELD_WORDS.update({
+    "zs_measured": "measured Zs (live)", "ln_terminals": "step 2 L–N at the terminals",
+    "le_terminals": "step 3 L–CPC at the terminals", "taken_at": "readings taken at",
+    "cpc_kind": "cpc is", "parallel_paths": "parallel earth paths expected",
+    "pfc_ka": "prospective fault current", "ir_test_v": "insulation test voltage",
+    "ir_ln_mohm": "insulation L–N", "ir_le_mohm": "insulation L–E",
+    "ir_ne_mohm": "insulation N–E", "rcd_trip_ms": "RCD trip time",
+    "rcd_button_ok": "RCD test button tripped it"})
+UNITS.update({"pfc_ka": "kA", "ir_test_v": "V", "ir_ln_mohm": "MΩ", "ir_le_mohm": "MΩ",
+              "ir_ne_mohm": "MΩ", "rcd_trip_ms": "ms"})
 STATUS_WORDS = {"in_progress": "in progress", "submitted": "submitted",
                 "returned": "returned to the tester", "approved": "approved"}
 STEP_WORDS = {"safety": "safety checks", "e2e": "step 1", "ln": "step 2", "le": "step 3",
