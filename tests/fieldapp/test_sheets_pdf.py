@@ -326,3 +326,63 @@ def test_a_zs_pass_on_a_faulty_ring_says_it_covers_zs_only():
     healthy = as_job_document(DEMOS["01-healthy-ring-with-spurs.json"])
     sound = sheet_context(healthy, [diagnose(r) for r in healthy["circuits"]], PEOPLE)
     assert sound["circuits"][0]["zs_only"] == ""
+
+
+def test_the_ring_picture_stays_with_its_circuit(printed):
+    """No page holds a drawing alone: the picture sits on the page that starts its circuit,
+    beside the circuit's details."""
+    doc, _, _, _, laid_out = printed
+    pictures = 0
+    for number, page in enumerate(laid_out.pages, start=1):
+        found = list(page_boxes(page))
+        images = [b for b in found if "sketch" in classes(b)]
+        if not images:
+            continue
+        pictures += len(images)
+        headings = {id(b.element) for b in found if getattr(b, "element_tag", "") == "h2"}
+        assert len(images) == len(headings) == 1, number
+        tables = [b for b in found if isinstance(b, boxes.TableBox)]
+        assert tables, f"page {number}: the picture without the circuit's figures"
+    assert pictures == len(doc["circuits"])
+
+
+def test_signoff_instrument_and_signature_lines_are_printed():
+    doc = as_job_document(HANDMADE)
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    people = {**PEOPLE, "instrument_model": "Acme MFT-9", "instrument_serial": "SN 40417",
+              "submit_reason": "Client away; cpc repair booked.",
+              "approve_reason": "Remedial work ordered as WO-17."}
+    laid_out = sheet_document(doc, diagnoses, people)
+    first = " ".join(pypdf.PdfReader(io.BytesIO(laid_out.write_pdf())).pages[0]
+                     .extract_text().split())
+    assert "Test instrument Acme MFT-9, serial no. SN 40417" in first
+    # the problems of the open cpc circuit, and who went on despite them, and why
+    assert "DB1/5" in first and "locked off not ticked" in first
+    assert ("Submitted with these problems by Morwenna Tregear on 27 Nov 2026 16:02 UTC. "
+            "Reason given: Client away; cpc repair booked.") in first
+    assert ("Approved with these problems by Idris Calloway on 28 Nov 2026 08:30 UTC. "
+            "Reason given: Remedial work ordered as WO-17.") in first
+    # one line each for the tester and the reviewer: name, date, and room to sign
+    assert "Tester Morwenna Tregear 27 Nov 2026" in first
+    assert "Reviewer Idris Calloway 28 Nov 2026" in first
+    rows = [b for page in laid_out.pages for b in page_boxes(page)
+            if "sigline" in classes(b)]
+    assert len(rows) == 2 and all(row.height >= 10 * 72 / 25.4 - 0.5 for row in rows)
+    # nothing recorded: the sheet says so rather than leaving a blank
+    bare = sheet_context(doc, diagnoses, {})
+    assert bare["instrument"] == "not recorded"
+    assert bare["signoff"]["reasons"] == [] and [s["name"] for s in bare["signatures"]] == [
+        "", ""]
+
+
+def test_a_sound_job_prints_no_problems():
+    doc = as_job_document(DEMOS["01-healthy-ring-with-spurs.json"])
+    for rec in doc["circuits"]:
+        rec["circuit"]["safety"] = {"isolated": True, "locked_off": True, "proved_dead": True,
+                                    "confirmed_by": "Morwenna Tregear",
+                                    "confirmed_at": "2026-11-27T09:00:00"}
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    assert {d["verdict"] for d in diagnoses} == {"satisfactory"}
+    ctx = sheet_context(doc, diagnoses, PEOPLE)
+    assert ctx["signoff"]["problems"] == []
+    assert "No problems found" in sheet_html(doc, diagnoses, PEOPLE)
