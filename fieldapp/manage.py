@@ -18,7 +18,7 @@ from pathlib import Path
 from sqlalchemy import func, select
 from werkzeug.security import generate_password_hash
 
-from fieldapp import changes, create_app, migrations
+from fieldapp import backup, changes, create_app, migrations
 from fieldapp.extensions import db
 from fieldapp.importer import import_document
 from fieldapp.models import ROLES, Job, User
@@ -151,6 +151,12 @@ def main(argv=None) -> int:
     run = sub.add_parser("run", help="setup, then serve; the logins are printed last")
     run.add_argument("--host", default="127.0.0.1")
     run.add_argument("--port", type=int, default=5000)
+    save = sub.add_parser("backup", help="write the whole database to FILE as JSON")
+    save.add_argument("file")
+    save.add_argument("--with-passwords", action="store_true",
+                      help="include the password hashes (keep that file safe)")
+    load = sub.add_parser("restore", help="load a backup FILE into an empty database")
+    load.add_argument("file")
     args = parser.parse_args(argv)
     if args.command == "setup":
         setup()
@@ -158,7 +164,33 @@ def main(argv=None) -> int:
     if args.command == "run":
         serve(args.host, args.port)
         return 0
+    if args.command == "backup":
+        return backup_command(args.file, args.with_passwords)
+    if args.command == "restore":
+        return restore_command(args.file)
     return reset_password(args.username)
+
+
+def backup_command(path: str, with_passwords: bool = False, app=None, out=sys.stdout) -> int:
+    app = app or create_app()
+    with app.app_context():
+        doc = backup.backup(with_passwords)
+    Path(path).write_text(json.dumps(doc, indent=1, ensure_ascii=False) + "\n")
+    rows = sum(len(rows) for rows in doc["tables"].values())
+    print(f"backup of {rows} rows at revision {doc['revision']} written to {path}", file=out)
+    return 0
+
+
+def restore_command(path: str, app=None, out=sys.stdout) -> int:
+    app = app or create_app()
+    with app.app_context():
+        try:
+            restored = backup.restore(json.loads(Path(path).read_text()))
+        except (backup.BackupError, ValueError) as error:
+            print(f"restore refused: {error}", file=sys.stderr)
+            return 2
+    print("restored " + ", ".join(f"{n} {t}" for t, n in restored.items() if n), file=out)
+    return 0
 
 
 if __name__ == "__main__":

@@ -8,8 +8,14 @@ from flask import abort, flash, redirect, render_template, request, url_for
 from flask_login import current_user, login_required
 from sqlalchemy import func, select
 
-from fieldapp import changes
-from fieldapp.auth.roles import TESTING_ROLES, role_required
+from fieldapp import changes, limits
+from fieldapp.auth.roles import (
+    REVIEW_ROLES,
+    TESTING_ROLES,
+    may_assign_tester,
+    may_submit,
+    role_required,
+)
 from fieldapp.extensions import db
 from fieldapp.jobs import bp
 from fieldapp.jobs.forms import CircuitForm, JobForm, SubmitJobForm, circuit_form_data
@@ -109,7 +115,7 @@ def detail(job_id: int):
 
 
 @bp.route("/<int:job_id>/edit", methods=["GET", "POST"])
-@role_required(*TESTING_ROLES)
+@role_required(*TESTING_ROLES, *REVIEW_ROLES)
 def edit(job_id: int):
     job = get_or_404(Job, job_id)
     locked = _refuse_locked(job)
@@ -119,7 +125,8 @@ def edit(job_id: int):
     form.tester_id.choices = _tester_choices()
     if request.method == "GET":
         form.tester_id.data = job.tester_id or 0
-    if form.validate_on_submit() and not _reference_taken(form, job):
+    if form.validate_on_submit() and not _reference_taken(form, job) and not _tester_refused(
+            form, job):
         changed = changes.update(job, _job_values(form), actor())
         db.session.commit()
         flash("Job saved." if changed else "Nothing changed.", "ok")
@@ -127,12 +134,21 @@ def edit(job_id: int):
     return render_template("jobs/job_form.html", form=form, job=job), _status()
 
 
+def _tester_refused(form: JobForm, job: Job) -> bool:
+    """Only the job's tester or a supervisor changes who tested it (README, ownership)."""
+    if (form.tester_id.data or None) != job.tester_id and not may_assign_tester(
+            current_user, job):
+        form.tester_id.errors.append("Only the job's tester or a supervisor can change this.")
+        return True
+    return False
+
+
 @bp.post("/<int:job_id>/submit")
-@role_required(*TESTING_ROLES)
+@role_required(*TESTING_ROLES, *REVIEW_ROLES)
 def submit(job_id: int):
     job = get_or_404(Job, job_id)
-    if job.tester_id not in (None, current_user.id):
-        abort(403)  # the job's own tester submits it (and gets it back when it is returned)
+    if not may_submit(current_user, job):
+        abort(403)  # the job's tester (for an apprentice: also their tester) or a supervisor
     locked = _refuse_locked(job)
     if locked:
         return locked
@@ -167,6 +183,10 @@ def new_circuit(job_id: int):
     locked = _refuse_locked(job)
     if locked:
         return locked
+    if len(job.circuits) >= limits.MAX_CIRCUITS_PER_JOB:
+        flash(f"A job holds at most {limits.MAX_CIRCUITS_PER_JOB} circuits: start another "
+              "job for the rest of the installation.", "error")
+        return redirect(url_for("jobs.detail", job_id=job.id))
     form = CircuitForm()
     if request.method == "GET" and job.circuits:
         last = job.circuits[-1]  # the next circuit is usually on the same board

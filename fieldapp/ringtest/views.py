@@ -12,10 +12,11 @@ from flask_login import login_required
 
 from fieldapp import changes, readings
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
+from fieldapp.diary import circuit_diary
 from fieldapp.extensions import db
+from fieldapp.labels import outlet_name
 from fieldapp.models import STEPS, Outlet, User, utcnow
 from fieldapp.readings import anchor_for
-from fieldapp.review.diary import circuit_diary
 from fieldapp.ringtest import bp
 from fieldapp.ringtest.errors import outlet_error, spur_error
 from fieldapp.ringtest.flashes import flash_saved
@@ -91,7 +92,7 @@ def safety(circuit_id: int):
 def step(circuit_id: int, step: str):
     if step not in READING_STEPS:
         abort(404)
-    return render_step(get_circuit(circuit_id), step)
+    return render_step(get_circuit(circuit_id), step, at=request.args.get("at"))
 
 
 @bp.post("/<int:circuit_id>/test/reading")
@@ -101,6 +102,9 @@ def save_reading(circuit_id: int):
     form = ReadingForm()
     field = form.field.data or ""
     if field not in changes.READING_FIELDS or not form.validate_on_submit():
+        if field in changes.READING_FIELDS and set(form.errors) == {"value"}:
+            # too long to be a reading: the form with its message
+            return render_step(circuit, readings.step_of(field), bad=form, status=422)
         abort(400)
     step = readings.step_of(field)
     outlet = (readings.find_outlet(circuit, form.outlet.data)
@@ -170,8 +174,10 @@ def add_outlet(circuit_id: int):
         form.spur_from_key.errors = [spur_error(error)]
         return render_step(circuit, step, outlet_form=form, status=422)
     db.session.commit()
-    flash(f"Added outlet {outlet.key}: {outlet.label}.", "ok")
-    return redirect(step_url(circuit, step, anchor_for(step, outlet.key)))
+    flash(f"Added outlet {outlet_name(outlet.key, outlet.label)}.", "ok")
+    # its reading field takes the focus; no URL fragment, which would take the focus away
+    return redirect(url_for("ringtest.step", circuit_id=circuit.id, step=step,
+                            at=anchor_for(step, outlet.key)))
 
 
 @bp.route("/<int:circuit_id>/outlets/<key>/edit", methods=["GET", "POST"])
@@ -228,7 +234,7 @@ def delete_outlet(circuit_id: int, key: str):
         return redirect(url_for("ringtest.edit_outlet", circuit_id=circuit.id, key=key,
                                 step=back))
     db.session.commit()
-    flash(f"Outlet {outlet.key} ({outlet.label}) removed from the test; "
+    flash(f"Outlet {outlet_name(outlet.key, outlet.label)} removed from the test; "
           "its readings stay in the history.", "ok")
     return redirect(step_url(circuit, back))
 

@@ -49,6 +49,19 @@
     }
   }
 
+  function showSlip(form, data) {
+    // The decimal point probably slipped: the server's two one-tap answers replace the error.
+    var card = form.closest(".reading");
+    var box = card && card.querySelector("[data-slip-box]");
+    if (!box || !data.html || !data.html.slip) { return false; }
+    showError(form, "");
+    box.innerHTML = data.html.slip;
+    box.querySelectorAll("form").forEach(enhance);
+    var first = box.querySelector("button");
+    if (first) { first.focus(); }
+    return true;
+  }
+
   function applyReply(form, reply) {
     var card = form.closest(".reading");
     if (card) {
@@ -64,10 +77,14 @@
       var label = form.querySelector("label");
       if (label) { label.textContent = "Correct the reading (Ω)"; }
     }
+    var slipBox = card && card.querySelector("[data-slip-box]");
+    if (slipBox) { slipBox.innerHTML = ""; }
     var leading = document.getElementById("leading");
     if (leading && reply.html) { leading.innerHTML = reply.html.leading; }
     form.querySelector('input[name="value"]').value = "";
-    form.querySelector('input[name="client_id"]').value = newId();
+    (card || form).querySelectorAll('input[name="client_id"]').forEach(function (input) {
+      input.value = newId();
+    });
     focusNext(reply.next_anchor);
   }
 
@@ -79,7 +96,8 @@
       outlet: outlet || null,
       value: ol ? "OL" : input.value.trim(),
       client_id: form.querySelector('input[name="client_id"]').value,
-      device: deviceLabel()
+      device: deviceLabel(),
+      keep: (form.querySelector('input[name="keep"]') || {}).value === "1"
     };
     if (!ol && body.value === "") {
       showError(form, "Type the reading in ohms, or tap OL if the meter shows OL.");
@@ -99,6 +117,8 @@
       if (result.status === 200) {
         showError(form, "");
         applyReply(form, result.data);
+      } else if (result.data && result.data.slip && showSlip(form, result.data)) {
+        return;
       } else {
         var errors = (result.data && result.data.errors) || {};
         var first = Object.keys(errors)[0];
@@ -142,8 +162,18 @@
 
   document.addEventListener("DOMContentLoaded", function () {
     document.querySelectorAll("form").forEach(enhance);
-    var focused = document.querySelector(".reading.focus");
-    if (focused && !location.hash) { focusNext(focused.id); }
+    // The card the server marked (a new outlet's, or the first reading still due) takes the
+    // focus. A URL fragment (#r-ln-c) names a card too; the browser moves the focus to the
+    // fragment once the page has loaded, so that focus waits for the load.
+    var target = location.hash && document.getElementById(location.hash.slice(1));
+    if (target && target.classList.contains("reading")) {
+      window.addEventListener("load", function () {
+        window.setTimeout(function () { focusNext(target.id); }, 0);
+      });
+    } else {
+      var focused = document.querySelector(".reading.focus");
+      if (focused) { focusNext(focused.id); }
+    }
     var sw = document.body.getAttribute("data-sw");
     if (sw && "serviceWorker" in navigator) {
       navigator.serviceWorker.register(sw, { scope: "/" }).catch(function () { /* optional */ });

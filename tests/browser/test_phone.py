@@ -192,7 +192,8 @@ def test_tap_targets_are_at_least_44px(apprentice, live_app):
 
 
 def wait_for_worker(page) -> None:
-    page.wait_for_function("navigator.serviceWorker && navigator.serviceWorker.controller !== null")
+    # a function, not an expression: the page's CSP forbids eval, which polling an expression uses
+    page.wait_for_function("() => !!navigator.serviceWorker && navigator.serviceWorker.controller")
 
 
 def wait_until_kept(page, path: str) -> None:

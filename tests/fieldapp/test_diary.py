@@ -11,7 +11,7 @@ from types import SimpleNamespace
 import pytest
 import sqlalchemy as sa
 
-from fieldapp.review.diary import change_words, device_words, diary_rows, local
+from fieldapp.diary import change_words, device_words, diary_rows, local
 
 ANDROID = ("Mozilla/5.0 (Linux; Android 14; Pixel 8) AppleWebKit/537.36 (KHTML, like Gecko) "
            "Chrome/131.0.0.0 Mobile Safari/537.36")

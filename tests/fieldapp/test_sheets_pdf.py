@@ -13,6 +13,7 @@ import pytest
 from bs4 import BeautifulSoup
 from weasyprint.formatting_structure import boxes
 
+from fieldapp.labels import outlet_name
 from fieldapp.sheets.context import recorded, sheet_context
 from fieldapp.sheets.pdf import sheet_document, sheet_html
 from fieldapp.transfer.schemas import dump_document, load_document
@@ -163,8 +164,8 @@ def test_schedule_rows_are_never_split_and_every_page_has_its_header(printed):
         assert len(schedule_pages) >= 2
 
 
-def drawn_numbers(picture) -> dict[str, set[str]]:
-    """Per label, the numbers its symbols carry in the ring picture (ring and key)."""
+def drawn_names(picture) -> dict[str, set[str]]:
+    """Per label, the names its symbols carry in the ring picture (ring and key)."""
     drawn: dict[str, set[str]] = {}
     for group in BeautifulSoup(str(picture), "html.parser").find_all("g"):
         title, text = group.find("title"), group.find("text")
@@ -180,29 +181,32 @@ def printed_svg(uri: str) -> str:
     return base64.b64decode(uri[len(prefix):]).decode()
 
 
-def test_outlets_carry_the_ring_pictures_numbers(printed):
+def test_outlets_carry_the_ring_pictures_names(printed):
     doc, diagnoses, _, pages, _ = printed
     screen = sheet_context(doc, diagnoses, PEOPLE)
     paper = sheet_context(doc, diagnoses, PEOPLE, drawing="print")
     flat = " ".join(" ".join(pages).split())
     for c, p, diagnosis in zip(screen["circuits"], paper["circuits"], diagnoses, strict=True):
-        numbers = {o["id"]: o["n"] for o in c["outlets"]}
-        assert sorted(numbers.values()) == list(range(1, len(numbers) + 1))
-        # the review page's picture names each outlet by the schedule's number
-        drawn = drawn_numbers(c["picture"])
+        rec = doc["circuits"][c["index"] - 1]
+        # one name per outlet: the id it has in the record, as every screen names it
+        names = {o["id"]: o["n"] for o in c["outlets"]}
+        assert names == {o["id"]: o["id"] for o in rec["outlets"]}
+        drawn = drawn_names(c["picture"])
         for o in c["outlets"]:
-            assert drawn[o["label"] or o["id"]] == {str(o["n"])}, o["id"]
-        # the printed sketch carries the same numbers, without the screen's tooltips
+            assert drawn[o["label"] or o["id"]] == {o["n"]}, o["id"]
+        # the printed sketch carries the same names, without the screen's tooltips
         svg = printed_svg(p["sketch"])
         texts = {t.get_text() for t in BeautifulSoup(svg, "html.parser").find_all("text")}
-        assert {str(n) for n in numbers.values()} <= texts
+        assert set(names.values()) <= texts
         assert "<title>" not in svg and p["picture"] == "" and c["sketch"] == ""
-        for o, rec in zip(c["outlets"], doc["circuits"][c["index"] - 1]["outlets"], strict=True):
-            if rec["spur_from"]:
-                assert o["fed"].startswith(f"spur from No. {numbers[rec['spur_from']]} ")
+        labels = {o["id"]: o["label"] for o in rec["outlets"]}
+        for o, outlet in zip(c["outlets"], rec["outlets"], strict=True):
+            if outlet["spur_from"]:
+                parent = outlet["spur_from"]
+                assert o["fed"] == f"spur from {outlet_name(parent, labels[parent])}"
         for finding, words in zip(diagnosis["findings"], c["findings"], strict=True):
             for oid in finding["outlets"]:
-                assert f"No. {numbers[oid]} ({oid})" in words["outlets"]
+                assert outlet_name(oid, labels[oid]) in words["outlets"]
         assert f"{c['index']}. {c['reference']}" in flat  # the overview on page 1
 
 
@@ -307,7 +311,8 @@ def test_an_outlet_over_its_limit_fails_the_circuit_even_without_a_circuit_zs():
     assert by_id["b"]["result"] == "FAIL" and by_id["b"]["named"] == "FAULT"
     assert by_id["a"]["result"] == "not proved"
     assert part_done["summary"]["result"] == "FAIL"
-    assert part_done["zs_line"] == f"over the limit or open at No. {by_id['b']['n']}"
+    hall = outlet_name('b', by_id['b']['label'])
+    assert part_done["zs_line"] == f"over the limit or open at {hall}"
     # the safety ticks are printed as recorded: locked off was not ticked on this circuit
     assert dict(part_done["details"])["Isolated / locked off / proved dead"] == "yes / NO / yes"
 
