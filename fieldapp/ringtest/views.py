@@ -12,6 +12,7 @@ from flask_login import login_required
 
 from fieldapp import changes, readings
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
+from fieldapp.diary import circuit_diary
 from fieldapp.extensions import db
 from fieldapp.labels import outlet_name
 from fieldapp.models import STEPS, Outlet, User, utcnow
@@ -256,6 +257,5 @@ def _diary(circuit):
     """The circuit's history as a diary (review's words). Imported here, not at the top: the
     review package imports the sheets, which import the live blueprint, which imports this
     package's forms."""
-    from fieldapp.review.diary import circuit_diary
 
     return circuit_diary(circuit)
