@@ -1,0 +1,100 @@
+"""The job sheet's words and print formats: verdicts, job statuses, reading checks, Zs
+results; ohms, readings as recorded, quantities and dates for print.
+
+Plain functions of plain values (fieldapp/sheets/context.py assembles the sheet from them).
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+
+VERDICT_WORDS = {
+    "satisfactory": "Satisfactory",
+    "investigate": "Investigate",
+    "incomplete": "Incomplete",
+}
+#: The job's overall verdict is its worst circuit's, in this order (worst first).
+VERDICT_ORDER = ("investigate", "incomplete", "satisfactory")
+STATUS_WORDS = {
+    "in_progress": "In progress",
+    "submitted": "Submitted for review",
+    "returned": "Returned to the tester",
+    "approved": "Approved",
+}
+READING_STATUS_WORDS = {
+    "ok": "in band",
+    "high": "HIGH",
+    "low": "LOW",
+    "open": "OPEN",
+    "pending": "not taken",
+}
+#: A reading that was taken but has nothing to be checked against yet (its band needs a step 1
+#: reading that is missing or OL).
+NO_BAND = "no band"
+#: A Zs that cannot be judged yet (a reading missing or OL), in words for a black-and-white copy.
+NOT_PROVED = "not proved"
+#: What a Zs "pass" does not say when the circuit as a whole is not satisfactory.
+ZS_ONLY = {
+    "investigate": "The Zs result covers the readings as taken only: the circuit is not "
+                   "satisfactory until the findings below are resolved and the steps repeated.",
+    "incomplete": "The Zs result covers the readings taken so far only: the test is not "
+                  "complete.",
+}
+STEP1 = (("r1", "r1 (line)"), ("rn", "rn (neutral)"), ("r2", "r2 (cpc)"))
+DASH = "—"
+
+
+def ohm(value) -> str:
+    """A computed resistance for print: two decimals, "OL", or a dash when unknown."""
+    if value is None:
+        return DASH
+    if value == "OL" or (isinstance(value, float) and math.isinf(value)):
+        return "OL"
+    return f"{float(value):.2f}"
+
+
+def recorded(value) -> str:
+    """A reading as it was recorded: at least two decimals, never rounded away."""
+    if value is None:
+        return DASH
+    if value == "OL":
+        return "OL"
+    text = f"{float(value):.2f}"
+    return text if float(text) == float(value) else repr(float(value))
+
+
+def when(value) -> str:
+    """A date or time (object or ISO text) for print; a dash when absent."""
+    if value in (None, ""):
+        return DASH
+    if isinstance(value, str):
+        try:
+            value = dt.datetime.fromisoformat(value) if "T" in value else dt.date.fromisoformat(
+                value)
+        except ValueError:
+            return value
+    if isinstance(value, dt.datetime):
+        return value.strftime("%d %b %Y %H:%M UTC")
+    return value.strftime("%d %b %Y")
+
+
+def verdict_of(diagnoses) -> str | None:
+    """The job's verdict: the worst of its circuits' (a circuit not assessed is incomplete)."""
+    verdicts = {d["verdict"] if d else "incomplete" for d in diagnoses}
+    return next((v for v in VERDICT_ORDER if v in verdicts), None)
+
+
+def _pass_word(ok) -> str:
+    return {True: "pass", False: "FAIL"}.get(ok, NOT_PROVED)
+
+
+def _yes(flag) -> str:
+    return "yes" if flag else "NO"
+
+
+
+def quantity(value) -> str:
+    """A plain quantity without trailing zeros (32.0 -> "32", 2.5 -> "2.5"); dash if None."""
+    return DASH if value is None else f"{float(value):g}"
+
