@@ -56,7 +56,7 @@ def circuit_verdict(circuit) -> dict:
         log.exception("diagnosis failed for circuit %s", circuit.id)
         diagnosis, reason = None, "diagnosis failed"
     if not diagnosis:
-        return {"verdict": "none", "words": "Not assessed", "reason": reason}
+        return {"verdict": "none", "words": labels.NOT_ASSESSED, "reason": reason}
     verdict = diagnosis.get("verdict") or "incomplete"
     return {"verdict": verdict, "words": labels.verdict_word(verdict), "reason": None}
 

@@ -6,8 +6,8 @@ from __future__ import annotations
 import base64
 import re
 
-from fieldapp.drawings import KIND_WORDS, point_names
-from fieldapp.labels import outlet_name
+from fieldapp.drawings import point_names
+from fieldapp.labels import KIND_WORDS, outlet_name
 from fieldapp.sheets.words import (
     DASH,
     NO_BAND,

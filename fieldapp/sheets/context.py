@@ -17,6 +17,7 @@ import datetime as dt
 
 from markupsafe import Markup
 
+from fieldapp import labels
 from fieldapp.drawings import ring_picture
 from fieldapp.live.feedback import live_summary
 from fieldapp.sheets.circuit import (  # noqa: F401  (old import paths)
@@ -48,7 +49,6 @@ from fieldapp.sheets.words import (  # noqa: F401  (old import paths)
     verdict_of,
     when,
 )
-from ringmath.messages import CAUTIONS
 
 
 def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str | None,
@@ -88,7 +88,7 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         "result": _zs_result(summary, ctx["outlets"]),
     }
     ctx["zs_line"] = _zs_line(summary, ctx["outlets"])
-    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), "Not assessed")
+    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), labels.NOT_ASSESSED)
     ctx["summary_sentence"] = diagnosis.get("summary") or problem or ""
     ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict"), "")
                       if ctx["summary"]["result"] == _pass_word(True) else "")
@@ -113,7 +113,7 @@ def _cautions(diagnoses) -> list[str]:
         for text in (d or {}).get("cautions") or []:
             if text not in seen:
                 seen.append(text)
-    return seen or list(CAUTIONS)
+    return seen or list(labels.CAUTIONS)
 
 
 def _instrument(people: dict) -> str:
@@ -181,7 +181,7 @@ def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *
         ],
         "status": STATUS_WORDS.get(people.get("status"), people.get("status") or ""),
         "review_comment": people.get("review_comment") or "",
-        "verdict": VERDICT_WORDS.get(verdict, "Not assessed"),
+        "verdict": VERDICT_WORDS.get(verdict, labels.NOT_ASSESSED),
         "circuits": [_circuit_context(i, rec, d, p, drawing)
                      for i, (rec, d, p) in enumerate(zip(records, diagnoses, problems,
                                                          strict=True))],

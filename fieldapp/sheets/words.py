@@ -7,15 +7,12 @@ Plain functions of plain values (fieldapp/sheets/context.py assembles the sheet 
 from __future__ import annotations
 
 import datetime as dt
-import math
 
-VERDICT_WORDS = {
-    "satisfactory": "Satisfactory",
-    "investigate": "Investigate",
-    "incomplete": "Incomplete",
-}
-#: The job's overall verdict is its worst circuit's, in this order (worst first).
-VERDICT_ORDER = ("investigate", "incomplete", "satisfactory")
+from fieldapp import labels
+
+#: Verdict words and the order of a job's verdict: the app's own (fieldapp/labels.py).
+VERDICT_WORDS = labels.VERDICT_WORDS
+VERDICT_ORDER = labels.VERDICT_ORDER
 STATUS_WORDS = {
     "in_progress": "In progress",
     "submitted": "Submitted for review",
@@ -33,25 +30,24 @@ READING_STATUS_WORDS = {
 #: reading that is missing or OL).
 NO_BAND = "no band"
 #: A Zs that cannot be judged yet (a reading missing or OL), in words for a black-and-white copy.
-NOT_PROVED = "not proved"
+NOT_PROVED = labels.NOT_PROVED
 #: What a Zs "pass" does not say when the circuit as a whole is not satisfactory.
 ZS_ONLY = {
     "investigate": "The Zs result covers the readings as taken only: the circuit is not "
                    "satisfactory until the findings below are resolved and the steps repeated.",
+    "retest": "The Zs result covers the readings as taken only: they are doubtful and the "
+              "steps must be repeated.",
     "incomplete": "The Zs result covers the readings taken so far only: the test is not "
                   "complete.",
 }
-STEP1 = (("r1", "r1 (line)"), ("rn", "rn (neutral)"), ("r2", "r2 (cpc)"))
+STEP1 = tuple(labels.CONDUCTOR_NAMES.items())
 DASH = "—"
 
 
 def ohm(value) -> str:
-    """A computed resistance for print: two decimals, "OL", or a dash when unknown."""
-    if value is None:
-        return DASH
-    if value == "OL" or (isinstance(value, float) and math.isinf(value)):
-        return "OL"
-    return f"{float(value):.2f}"
+    """A computed resistance for print: two decimals, "OL", or a dash when unknown (the app's
+    one formatter, without the unit: the sheet's columns say Ω)."""
+    return labels.ohm(value, unit=False)
 
 
 def recorded(value) -> str:
@@ -81,12 +77,11 @@ def when(value) -> str:
 
 def verdict_of(diagnoses) -> str | None:
     """The job's verdict: the worst of its circuits' (a circuit not assessed is incomplete)."""
-    verdicts = {d["verdict"] if d else "incomplete" for d in diagnoses}
-    return next((v for v in VERDICT_ORDER if v in verdicts), None)
+    return labels.worst_verdict(d["verdict"] if d else "incomplete" for d in diagnoses)
 
 
 def _pass_word(ok) -> str:
-    return {True: "pass", False: "FAIL"}.get(ok, NOT_PROVED)
+    return labels.result_word(ok)
 
 
 def _yes(flag) -> str:
