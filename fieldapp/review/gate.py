@@ -109,8 +109,7 @@ def _zs(rec: dict, diagnosis: dict, names: dict[str, str]) -> list[Problem]:
                                                f"{_ohm(p['zs_ohm'])} against "
                                                f"{_ohm(p['zs_max_ohm'])}."))
     summary = diagnosis.get("circuit") or {}
-    if not points and summary.get("zs_ohm") is not None and summary.get(
-            "zs_max_ohm") is not None and summary["zs_ohm"] > summary["zs_max_ohm"]:
+    if not points and summary.get("zs_ok") is False:  # the diagnosis' own result
         problems.append(Problem("zs_fail", f"Zs over the limit for the circuit: "
                                            f"{_ohm(summary['zs_ohm'])} against "
                                            f"{_ohm(summary['zs_max_ohm'])}."))

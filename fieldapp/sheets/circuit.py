@@ -11,7 +11,6 @@ from fieldapp.labels import KIND_WORDS, outlet_name
 from fieldapp.sheets.words import (
     DASH,
     NO_BAND,
-    NOT_PROVED,
     READING_STATUS_WORDS,
     _pass_word,
     _yes,
@@ -131,17 +130,10 @@ def _findings(diagnosis: dict, names: dict[str, str], labels: dict) -> list[dict
     } for f in diagnosis.get("findings") or []]
 
 
-def _zs_result(summary: dict, rows: list[dict]) -> str:
-    """The circuit's Zs result: FAIL when any outlet or the circuit's figure is over its limit,
-    pass when the figure is within it and every outlet passed, else not proved."""
-    ok = None
-    if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
-        ok = summary["zs_ohm"] <= summary["zs_max_ohm"]
-    if ok is False or any(row["failed"] for row in rows):
-        return _pass_word(False)
-    if ok and all(row["result"] == _pass_word(True) for row in rows):
-        return _pass_word(True)
-    return NOT_PROVED
+def _zs_result(summary: dict) -> str:
+    """The circuit's Zs result in words: the diagnosis' own ``circuit.zs_ok`` (any point
+    failing, predicted or measured: FAIL; any not known: not proved), never re-judged here."""
+    return _pass_word(summary.get("zs_ok"))
 
 
 def _zs_line(summary: dict, rows: list[dict]) -> str:

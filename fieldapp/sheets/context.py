@@ -85,7 +85,7 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         "zs_tabulated": ohm(summary.get("zs_tabulated_ohm")),
         "device": summary.get("device") or _device(circuit),
         "limit_source": summary.get("limit_source") or "",
-        "result": _zs_result(summary, ctx["outlets"]),
+        "result": _zs_result(summary),
     }
     ctx["zs_line"] = _zs_line(summary, ctx["outlets"])
     ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), labels.NOT_ASSESSED)
