@@ -67,6 +67,11 @@ STATUS_WORDS = {
 }
 SEVERITY_WORDS = {"fault": "Fault", "warning": "Check", "info": "Note"}
 
+
+def severity_word(severity: str | None) -> str:
+    """A finding's severity in words ("fault" or "FAULT" -> "Fault"); "Note" when unknown."""
+    return SEVERITY_WORDS.get(str(severity or "").lower(), "Note")
+
 #: One-line explanations of the terms an apprentice may not know, opened on tap.
 TERMS = {
     "OL": "The meter's over-range sign: no connection it can measure (an open circuit).",

@@ -150,6 +150,8 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
         measured = outlet.get("zs_measured")
         rows.append({
             "id": key, "label": outlet.get("label") or key,
+            # the one name each outlet has everywhere (fieldapp/labels.py): "c · Kitchen"
+            "name": labels.outlet_name(key, outlet.get("label"), outlet.get("kind")),
             "r1r2": ohm(point.get("r1r2_ohm")),
             "estimated": bool(point.get("r1r2_estimated")),
             "predicted": ohm(point.get("zs_ohm")),
@@ -194,7 +196,7 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
         },
         "findings": [f for f in (diagnosis or {}).get("findings") or []
                      if f.get("code") in LIVE_CODES],
-        "marginal": [r["label"] for r in rows if r["marginal"]],
-        "estimated": [r["label"] for r in rows if r["estimated"]],
+        "marginal": [r["name"] for r in rows if r["marginal"]],
+        "estimated": [r["name"] for r in rows if r["estimated"]],
         "caution": LIVE_CAUTION,
     }

@@ -149,7 +149,7 @@ def _verdict(diagnosis: dict, listed: list[Problem]) -> list[Problem]:
     for finding in diagnosis.get("findings") or []:
         if finding.get("severity") in ("fault", "warning") and finding.get(
                 "code") not in ZS_CODES:
-            label = "Fault" if finding["severity"] == "fault" else "Check"
+            label = labels.severity_word(finding["severity"])
             problems.append(Problem("finding", f"{label}: {finding.get('message') or ''}"))
     return problems
 

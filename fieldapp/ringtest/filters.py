@@ -35,6 +35,16 @@ def outlet_name(oid, label: str | None = None, kind: str | None = None) -> str:
     return labels.outlet_name(oid, label, kind)
 
 
+@bp.app_template_global("severity_word")
+def severity_word(severity: str | None) -> str:
+    return labels.severity_word(severity)
+
+
+@bp.app_template_global("fed_from")
+def fed_from(spur_from) -> str:
+    return labels.fed_from(spur_from)
+
+
 @bp.app_template_global("term")
 def term(word: str, shown: str | None = None) -> Markup:
     """A trade term that opens its one-line explanation on tap (no script, no tooltip)."""
