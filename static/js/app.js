@@ -1,47 +1,39 @@
 /* Instant feedback on the reading pages. Only an enhancement: every form also works as a
-   plain post. A reading form is sent to the JSON endpoint (data-api) with its client id; the
-   reply's feedback and leading diagnosis replace the page's in place. When the network is
-   not there, window.ringtestOffline.enqueue(url, body) is used if the page has it, else the
-   form is posted the ordinary way. */
-(function () {
+ * plain post. A reading goes into the outbox (static/js/outbox.js) and is sent at once when
+ * there is a signal; the server's feedback and leading diagnosis then replace the card's in
+ * place. Without a signal the card shows the reading as waiting, with the band the server
+ * last gave for it. If the phone cannot store it, the card says so at once.
+ */
+(function (root) {
   "use strict";
+  var RT = root.RT = root.RT || {};
+  var util = RT.util;
 
-  function csrfToken() {
-    var meta = document.querySelector('meta[name="csrf-token"]');
-    return meta ? meta.getAttribute("content") : "";
-  }
-
-  function newId() {
-    if (window.crypto && window.crypto.randomUUID) {
-      return window.crypto.randomUUID();
-    }
-    var s = "";
-    for (var i = 0; i < 32; i++) {
-      s += Math.floor(Math.random() * 16).toString(16);
-    }
-    return s.slice(0, 8) + "-" + s.slice(8, 12) + "-" + s.slice(12, 16) + "-" + s.slice(16);
-  }
-
-  function deviceLabel() {
-    try {
-      return localStorage.getItem("ringtest-device") || navigator.userAgent;
-    } catch (e) {
-      return navigator.userAgent;
-    }
-  }
-
-  function showError(form, text) {
+  function showError(form, message) {
     var box = form.querySelector(".js-error");
-    if (!box) { return; }
-    box.textContent = text || "";
-    box.hidden = !text;
+    if (!box) return;
+    box.textContent = message || "";
+    box.hidden = !message;
     var input = form.querySelector('input[name="value"]');
-    if (input) { input.setAttribute("aria-invalid", text ? "true" : "false"); }
+    if (input) input.setAttribute("aria-invalid", message ? "true" : "false");
+  }
+
+  function note(card, message) {
+    var box = card.querySelector(".offline-note");
+    if (!box) {
+      box = document.createElement("p");
+      box.className = "offline-note";
+      var feedback = card.querySelector("[data-feedback]");
+      card.insertBefore(box, feedback ? feedback.nextSibling : null);
+    }
+    box.className = "offline-note";
+    box.removeAttribute("role");
+    box.textContent = message;
+    box.hidden = !message;
   }
 
   function focusNext(anchor) {
-    if (!anchor) { return; }
-    var card = document.getElementById(anchor);
+    var card = anchor && document.getElementById(anchor);
     var input = card && card.querySelector('input[name="value"]');
     if (input) {
       card.scrollIntoView({ block: "center" });
@@ -49,82 +41,93 @@
     }
   }
 
-  function applyReply(form, reply) {
-    var card = form.closest(".reading");
-    if (card) {
-      var value = card.querySelector("[data-value]");
-      if (value) {
-        value.textContent = reply.value === "OL" ? "OL" : Number(reply.value).toFixed(2) + " Ω";
-        var line = value.closest(".now");
-        if (line) { line.hidden = false; }
-      }
-      var feedback = card.querySelector("[data-feedback]");
-      if (feedback && reply.html) { feedback.innerHTML = reply.html.feedback; }
-      card.classList.remove("pending");
-      var label = form.querySelector("label");
-      if (label) { label.textContent = "Correct the reading (Ω)"; }
-    }
+  /* Offline there is no diagnosis, but the card carries the band the server last gave for
+   * this reading (data-low / data-high): say at once whether the value is in it. */
+  function bandNote(card, value) {
+    var low = parseFloat(card.getAttribute("data-low"));
+    var high = parseFloat(card.getAttribute("data-high"));
+    if (!isFinite(low) || !isFinite(high)) return "";
+    var band = low.toFixed(2) + " to " + high.toFixed(2) + " Ω";
+    if (value === "OL") return " OL where " + band + " was expected: check the probe contact and the board joins.";
+    var n = parseFloat(String(value).replace(",", "."));
+    if (!isFinite(n)) return "";
+    if (n < low) return " Below the expected " + band + ": check before moving on.";
+    if (n > high) return " Above the expected " + band + ": check before moving on.";
+    return " Within the expected " + band + ".";
+  }
+
+  function applyReply(card, reply) {
+    RT.overlay.setValue(card, reply.value, false);
+    var feedback = card.querySelector("[data-feedback]");
+    if (feedback && reply.html) feedback.innerHTML = reply.html.feedback;
+    var label = card.querySelector("form label");
+    if (label) label.textContent = "Correct the reading (Ω)";
     var leading = document.getElementById("leading");
-    if (leading && reply.html) { leading.innerHTML = reply.html.leading; }
-    form.querySelector('input[name="value"]').value = "";
-    form.querySelector('input[name="client_id"]').value = newId();
-    focusNext(reply.next_anchor);
+    if (leading && reply.html) leading.innerHTML = reply.html.leading;
+    note(card, "");
+  }
+
+  /* Cards waiting for the server's answer to an item, by item id. */
+  var pending = {};
+
+  function onOutbox(event) {
+    var d = event.detail || {};
+    if (!d.item || !pending[d.item.id]) return;
+    var entry = pending[d.item.id];
+    delete pending[d.item.id];
+    if (d.state === "sent" && d.item.kind === "reading") {
+      applyReply(entry.card, d.item.reply || {});
+      if (entry.focus && d.item.reply) focusNext(d.item.reply.next_anchor);
+    } else if (d.state === "refused") {
+      RT.overlay.setValue(entry.card, d.item.body.value, false);
+      note(entry.card, "");
+      showError(entry.form, "Not accepted: " + d.item.reason + " (kept in the list at the top until you enter it again or discard it).");
+    }
   }
 
   function send(form, ol) {
+    var card = form.closest("article.reading");
     var input = form.querySelector('input[name="value"]');
-    var outlet = form.querySelector('input[name="outlet"]').value;
-    var body = {
-      step: form.querySelector('input[name="field"]').value,
-      outlet: outlet || null,
-      value: ol ? "OL" : input.value.trim(),
-      client_id: form.querySelector('input[name="client_id"]').value,
-      device: deviceLabel()
-    };
-    if (!ol && body.value === "") {
+    var value = ol ? "OL" : input.value.trim();
+    if (!value) {
       showError(form, "Type the reading in ohms, or tap OL if the meter shows OL.");
       input.focus();
       return;
     }
-    var buttons = form.querySelectorAll("button, input[type=submit]");
-    buttons.forEach(function (b) { b.disabled = true; });
-    fetch(form.getAttribute("data-api"), {
-      method: "POST",
-      credentials: "same-origin",
-      headers: { "Content-Type": "application/json", "X-CSRFToken": csrfToken() },
-      body: JSON.stringify(body)
-    }).then(function (response) {
-      return response.json().then(function (data) { return { status: response.status, data: data }; });
-    }).then(function (result) {
-      if (result.status === 200) {
-        showError(form, "");
-        applyReply(form, result.data);
-      } else {
-        var errors = (result.data && result.data.errors) || {};
-        var first = Object.keys(errors)[0];
-        showError(form, first ? errors[first].join(" ") : "Not saved.");
+    showError(form, "");
+    var field = form.querySelector('input[name="field"]').value;
+    var key = form.querySelector('input[name="outlet"]').value || null;
+    var clientKey = card.getAttribute("data-client-key");
+    if (clientKey && card.getAttribute("data-outlet")) clientKey = null; // it has its key now
+    var idInput = form.querySelector('input[name="client_id"]');
+    var body = { step: field, outlet: key, value: value, client_id: idInput.value || util.newClientId() };
+    var where = key ? " at outlet " + key : clientKey ? " at the new outlet" : "";
+    var words = (util.NAMES[field] || field) + where + " = " + value;
+    var entry = RT.forms.item("reading", body, words,
+      "reading:" + field + ":" + (key || clientKey || ""), clientKey);
+    RT.forms.queue(entry).then(function () {
+      pending[entry.id] = { card: card, form: form, focus: true };
+      idInput.value = util.newClientId(); // the next reading from this form is a new write
+      input.value = "";
+      RT.overlay.setValue(card, value, true);
+      if (!navigator.onLine) {
+        note(card, "Saved on this phone: " + words + ". It will be sent when back online." +
+          bandNote(card, value));
+        var next = card.nextElementSibling;
+        while (next && !next.classList.contains("pending")) next = next.nextElementSibling;
+        if (next) focusNext(next.id);
       }
-    }).catch(function () {
-      var offline = window.ringtestOffline;
-      if (offline && typeof offline.enqueue === "function") {
-        offline.enqueue(form.getAttribute("data-api"), body);
-        showError(form, "");
-        var feedback = form.closest(".reading").querySelector("[data-feedback]");
-        if (feedback) { feedback.textContent = "Kept on this phone; it will be sent when the signal is back."; }
-        form.querySelector('input[name="client_id"]').value = newId();
-      } else {
-        if (ol) { form.querySelector('input[name="value"]').value = "OL"; }
-        form.submit();
-      }
-    }).finally(function () {
-      buttons.forEach(function (b) { b.disabled = false; });
+    }, function (error) {
+      RT.forms.storageFull(card, error);
     });
   }
 
   function enhance(form) {
+    if (form.getAttribute("data-enhanced")) return;
+    form.setAttribute("data-enhanced", "1");
     var device = form.querySelector('input[name="device"]');
-    if (device) { device.value = deviceLabel(); }
-    if (!form.classList.contains("reading-form") || !window.fetch) { return; }
+    if (device) device.value = util.deviceLabel();
+    if (!form.classList.contains("reading-form")) return;
     var olPressed = false;
     form.querySelectorAll('[name="ol"]').forEach(function (b) {
       b.addEventListener("click", function () { olPressed = true; });
@@ -134,19 +137,21 @@
     });
     form.addEventListener("submit", function (event) {
       event.preventDefault();
-      var ol = olPressed;
+      var ol = olPressed || (event.submitter && event.submitter.name === "ol");
       olPressed = false;
       send(form, ol);
     });
   }
 
-  document.addEventListener("DOMContentLoaded", function () {
+  function start() {
     document.querySelectorAll("form").forEach(enhance);
+    document.addEventListener("ringtest:card", function (event) {
+      event.detail.querySelectorAll("form").forEach(enhance);
+    });
+    root.addEventListener("ringtest:outbox", onOutbox);
     var focused = document.querySelector(".reading.focus");
-    if (focused && !location.hash) { focusNext(focused.id); }
-    var sw = document.body.getAttribute("data-sw");
-    if (sw && "serviceWorker" in navigator) {
-      navigator.serviceWorker.register(sw, { scope: "/" }).catch(function () { /* optional */ });
-    }
-  });
-})();
+    if (focused && !location.hash) focusNext(focused.id);
+  }
+
+  RT.app = { start: start };
+})(self);
