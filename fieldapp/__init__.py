@@ -10,18 +10,20 @@ import importlib
 import os
 from pathlib import Path
 
-from flask import Flask, redirect, render_template, request, send_from_directory, url_for
+from flask import Flask, redirect, request, send_from_directory, url_for
 from flask_compress import Compress
-from flask_wtf.csrf import CSRFError
 
+from fieldapp import applog, errors, security
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
 from fieldapp.models import utcnow
+from fieldapp.safejson import SafeJSONProvider
+from fieldapp.web import IdConverter
 
 ROOT = Path(__file__).resolve().parent.parent
 #: Blueprints built in this package; optional ones are registered when their module exists.
 BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api",
-              "fieldapp.review", "fieldapp.sheets", "fieldapp.transfer")
+              "fieldapp.review", "fieldapp.sheets", "fieldapp.transfer", "fieldapp.users")
 
 
 def create_app(config: dict | None = None) -> Flask:
@@ -41,8 +43,11 @@ def create_app(config: dict | None = None) -> Flask:
     app.config.update(overrides)
     if not app.config.get("SECRET_KEY"):
         app.config["SECRET_KEY"] = app_config.secret_key(app.instance_path)
+    _harden(app)
 
     db.init_app(app)
+    with app.app_context():
+        security.tune_sqlite(db.engine)
     csrf.init_app(app)
     login_manager.init_app(app)
     login_manager.login_view = "auth.login"
@@ -53,6 +58,7 @@ def create_app(config: dict | None = None) -> Flask:
         app.register_blueprint(importlib.import_module(name).bp)
     _register_pages(app)
     _register_cache_policy(app)
+    errors.register(app)
     return app
 
 
@@ -84,6 +90,14 @@ def _register_cache_policy(app: Flask) -> None:
         return response
 
 
+def _harden(app: Flask) -> None:
+    """Logging, JSON limits, bounded ids in URLs, security headers (fieldapp/security.py)."""
+    applog.setup(app.config.get("LOG_LEVEL", "INFO"))
+    app.json = SafeJSONProvider(app)
+    app.url_map.converters["int"] = IdConverter
+    security.install(app)
+
+
 def _register_pages(app: Flask) -> None:
     from fieldapp.auth.roles import can_test
 
@@ -105,18 +119,3 @@ def _register_pages(app: Flask) -> None:
             # when the page was made (UTC, ISO 8601): an offline copy says "as of" this time
             "rendered_at": lambda: utcnow().replace(microsecond=0).isoformat() + "Z",
         }
-
-    @app.errorhandler(CSRFError)
-    def csrf_error(error):
-        return render_template("error.html", title="Form expired",
-                               message="This form was open too long or came from another page. "
-                                       "Go back, reload the page and try again.",
-                               ), 400
-
-    for code, title, message in (
-        (403, "Not allowed", "Your role does not allow this. Ask a tester or supervisor."),
-        (404, "Not found", "There is nothing at this address."),
-    ):
-        app.register_error_handler(
-            code, lambda _e, c=code, t=title, m=message: (
-                render_template("error.html", title=t, message=m), c))

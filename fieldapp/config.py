@@ -3,6 +3,9 @@
 DATABASE_URL: any SQLAlchemy URL; default a SQLite file in the instance folder.
 SECRET_KEY: session signing key; when unset a random key is generated once into the instance
 folder (fine for a single development machine, set it explicitly anywhere else).
+FIELDAPP_HTTPS=1: served over HTTPS (Secure cookies, HSTS). FIELDAPP_PROXY_HOPS=N: N reverse
+proxies in front whose X-Forwarded-* headers are trusted (fieldapp/security.py).
+FIELDAPP_LOG_LEVEL: DEBUG, INFO (default), WARNING, ...
 """
 
 from __future__ import annotations
@@ -10,6 +13,9 @@ from __future__ import annotations
 import os
 import secrets
 from pathlib import Path
+
+from fieldapp import limits
+from fieldapp.security import https_config
 
 SQLITE_FILE = "fieldapp.sqlite"
 SECRET_FILE = "secret_key"
@@ -42,9 +48,19 @@ def secret_key(instance_path: str) -> str:
     return key
 
 
+def _flag(name: str) -> bool:
+    return os.environ.get(name, "").strip().lower() in ("1", "true", "yes", "on")
+
+
 def base_config(instance_path: str) -> dict:
     """The settings every app starts from; create_app(config) overrides them."""
+    hops = os.environ.get("FIELDAPP_PROXY_HOPS", "").strip()
     return {
+        **https_config(_flag("FIELDAPP_HTTPS")),
+        "PROXY_HOPS": int(hops) if hops.isdigit() else 0,
+        "LOG_LEVEL": os.environ.get("FIELDAPP_LOG_LEVEL") or "INFO",
+        "MAX_CONTENT_LENGTH": limits.MAX_CONTENT_LENGTH,
+        "MAX_FORM_MEMORY_SIZE": limits.MAX_CONTENT_LENGTH,
         "SQLALCHEMY_DATABASE_URI": database_url(instance_path),
         "SQLALCHEMY_ENGINE_OPTIONS": {"pool_pre_ping": True},
         "SESSION_COOKIE_HTTPONLY": True,

@@ -12,7 +12,7 @@ from sqlalchemy import select
 
 from fieldapp import changes
 from fieldapp.extensions import db
-from fieldapp.models import Circuit, Job
+from fieldapp.models import Circuit, Job, utcnow
 from ringmath import parse_document
 
 
@@ -54,15 +54,17 @@ def import_circuit(job: Job, record: dict, actor: changes.Actor, position: int) 
     """One circuit record into ``job``; readings through set_reading (logged).
 
     The safety checks are left unticked: an import confirms nothing about isolation on site.
+    The circuit is marked imported (who, when), so its readings show as taken elsewhere.
     """
     fields = circuit_fields(record["circuit"])
-    fields.update({"job_id": job.id, "position": position, "current_step": "safety"})
+    fields.update({"job_id": job.id, "position": position, "current_step": "safety",
+                   "imported_by_id": actor.user_id, "imported_at": utcnow()})
     circuit = changes.create(Circuit, fields, actor)
     e2e = record.get("end_to_end") or {}
     for name in ("r1", "rn", "r2"):
         if e2e.get(name) is not None:
             changes.set_reading(circuit, name, e2e[name], actor)
-    for doc in record.get("outlets") or []:
+    for doc in record.get("outlets") or ():
         outlet = changes.add_outlet(circuit, _outlet_fields(doc), actor)
         for name in ("ln", "le"):
             if doc.get(name) is not None:

@@ -21,6 +21,7 @@ from fieldapp import changes, create_app, migrations
 from fieldapp.extensions import db
 from fieldapp.importer import import_document
 from fieldapp.models import ROLES, Job, User
+from fieldapp.users import service as users_service
 
 DEMO_DIR = Path(__file__).resolve().parent.parent / "demo_jobs"
 #: Invented people, one per role.
@@ -38,10 +39,7 @@ def create_user(username: str, name: str, role: str, password: str,
         raise ValueError(f"role: {role!r} is not one of {', '.join(ROLES)}")
     hashed = generate_password_hash(password, method) if method else generate_password_hash(
         password)
-    user = User(username=username, name=name, role=role, password_hash=hashed)
-    db.session.add(user)
-    db.session.flush()
-    return user
+    return users_service.add_user(username, name, role, hashed, None)
 
 
 def new_password() -> str:
@@ -110,8 +108,9 @@ def reset_password(username: str, app=None, out=sys.stdout) -> int:
             return 1
         password = new_password()
         method = app.config.get("PASSWORD_HASH_METHOD")
-        user.password_hash = (generate_password_hash(password, method) if method
-                              else generate_password_hash(password))
+        users_service.set_password(user, generate_password_hash(password, method) if method
+                                   else generate_password_hash(password), None,
+                                   "password_reset")
         db.session.commit()
         print(f"new password for {username}: {password}", file=out)
         return 0

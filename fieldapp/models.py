@@ -9,7 +9,7 @@ from __future__ import annotations
 import datetime as dt
 
 from flask_login import UserMixin
-from sqlalchemy import ForeignKey, Index, String, Text, UniqueConstraint
+from sqlalchemy import ForeignKey, Index, String, Text, UniqueConstraint, text
 from sqlalchemy.orm import Mapped, mapped_column, relationship
 
 from fieldapp.extensions import db
@@ -34,6 +34,20 @@ class User(UserMixin, db.Model):
     name: Mapped[str] = mapped_column(String(120))
     password_hash: Mapped[str] = mapped_column(String(256))
     role: Mapped[str] = mapped_column(String(16))
+    #: Bumped by sign-out, a password change or reset and disabling: every session and
+    #: remember token made under an older value stops working (checked on every request).
+    session_version: Mapped[int] = mapped_column(default=0, server_default=text("0"))
+    disabled_at: Mapped[dt.datetime | None]
+    #: The tester an apprentice works under (may submit the apprentice's jobs).
+    mentor_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+
+    @property
+    def is_active(self) -> bool:  # Flask-Login refuses inactive users
+        return self.disabled_at is None
+
+    def get_id(self) -> str:
+        """The session's user id carries the session version: "7:3"."""
+        return f"{self.id}:{self.session_version}"
 
 
 class Job(db.Model):
@@ -94,9 +108,17 @@ class Circuit(db.Model):
     rn: Mapped[str | None] = mapped_column(String(16))
     r2: Mapped[str | None] = mapped_column(String(16))
     current_step: Mapped[str] = mapped_column(String(10), default="safety")
+    #: Set when the circuit came from a file: who imported it and when; its readings were
+    #: not taken in this app. imported_safety: the file's safety block as JSON text (what
+    #: the file claims, never a confirmation made here).
+    imported_by_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    imported_at: Mapped[dt.datetime | None]
+    imported_safety: Mapped[str | None] = mapped_column(Text)
 
     job: Mapped[Job] = relationship(back_populates="circuits")
-    safety_confirmed_by: Mapped[User | None] = relationship()
+    safety_confirmed_by: Mapped[User | None] = relationship(
+        foreign_keys=[safety_confirmed_by_id])
+    imported_by: Mapped[User | None] = relationship(foreign_keys=[imported_by_id])
     outlets: Mapped[list[Outlet]] = relationship(
         back_populates="circuit", order_by="Outlet.position")
 
@@ -142,3 +164,64 @@ class ChangeLog(db.Model):
     client_id: Mapped[str | None] = mapped_column(String(64), unique=True)
 
     user: Mapped[User | None] = relationship()
+
+
+class StoredDiagnosis(db.Model):
+    """A diagnosis computed once per distinct circuit record and engine, shared by every worker
+    and server (a cache: a row can always be recomputed from the record)."""
+
+    __tablename__ = "stored_diagnosis"
+    __table_args__ = (UniqueConstraint("record_hash", "engine"),)
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    #: sha256 of the record's canonical JSON (sorted keys, no job block).
+    record_hash: Mapped[str] = mapped_column(String(64))
+    #: fieldapp.diagnoses.ENGINE_VERSION at the time it was computed.
+    engine: Mapped[str] = mapped_column(String(64))
+    result: Mapped[str] = mapped_column(Text)
+    created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
+
+
+class RememberToken(db.Model):
+    """A "keep me logged in" token: the cookie holds selector:secret, the table the secret's
+    SHA-256. A new one on every login; revoked at sign-out and with the session version."""
+
+    __tablename__ = "remember_token"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    user_id: Mapped[int] = mapped_column(ForeignKey("user.id"), index=True)
+    selector: Mapped[str] = mapped_column(String(32), unique=True)
+    secret_hash: Mapped[str] = mapped_column(String(64))
+    created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
+    expires_at: Mapped[dt.datetime]
+    revoked_at: Mapped[dt.datetime | None]
+
+
+class LoginAttempt(db.Model):
+    """One sign-in attempt, kept a day: the failure limits per account and per address."""
+
+    __tablename__ = "login_attempt"
+    __table_args__ = (Index("ix_login_attempt_username_at", "username", "at"),
+                      Index("ix_login_attempt_address_at", "address", "at"))
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    at: Mapped[dt.datetime] = mapped_column(default=utcnow, index=True)
+    username: Mapped[str] = mapped_column(String(64))
+    address: Mapped[str] = mapped_column(String(64))
+    succeeded: Mapped[bool] = mapped_column(default=False)
+
+
+class UserEvent(db.Model):
+    """What was done to an account and by whom: created, disabled, password reset, ..."""
+
+    __tablename__ = "user_event"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    at: Mapped[dt.datetime] = mapped_column(default=utcnow)
+    user_id: Mapped[int] = mapped_column(ForeignKey("user.id"), index=True)
+    actor_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
+    action: Mapped[str] = mapped_column(String(32))
+    detail: Mapped[str] = mapped_column(Text, default="")
+
+    user: Mapped[User] = relationship(foreign_keys=[user_id])
+    actor: Mapped[User | None] = relationship(foreign_keys=[actor_id])

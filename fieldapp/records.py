@@ -2,14 +2,10 @@
 
 from __future__ import annotations
 
-import copy
-import functools
-import json
-
 from fieldapp.changes import live_outlets
+from fieldapp.diagnoses import diagnosis_for
 from fieldapp.models import Circuit, Job
 from ringmath import FORMAT
-from ringmath.diagnose import diagnose
 
 
 def reading_value(text: str | None):
@@ -81,21 +77,14 @@ def job_document(job: Job) -> dict:
             "circuits": [circuit_record(c, with_job=False) for c in job.circuits]}
 
 
-@functools.lru_cache(maxsize=512)
-def _diagnose_text(record_json: str) -> dict:
-    return diagnose(json.loads(record_json))
-
-
 def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
     """(diagnosis, None) from ringmath.diagnose, or (None, reason) when it cannot run.
 
-    The supervisor's list diagnoses every circuit of every job on each view, so results are
-    kept per distinct record (a changed reading is a different record); callers get a copy.
+    Computed once per distinct record and engine and stored in the database
+    (``fieldapp.diagnoses``), so every worker and server shares it; callers get a copy.
     """
     record = circuit_record(circuit, with_job=False)  # the job block plays no part
     try:
-        result = _diagnose_text(json.dumps(record, sort_keys=True))
+        return diagnosis_for(record), None
     except ValueError as error:
         return None, f"The record cannot be diagnosed yet: {error}"
-    return copy.deepcopy(result), None
-

@@ -2,8 +2,10 @@
 
 Prints one JSON object per input file, one per line, in input order, and exits 0 whether or
 not faults are found. A file that cannot be read or parsed gives one line on stderr naming the
-file and the field, and exit status 2 (the other files are still diagnosed). A job document
-with several circuits gives one object with the worst verdict and a ``circuits`` list.
+file and the field, and exit status 2 (the other files are still diagnosed); no input prints a
+traceback (deep nesting, huge numbers and text that is not UTF-8 included: the JSON is read with
+``ringmath.record.loads``). A job document with several circuits gives one object with the worst
+verdict and a ``circuits`` list.
 """
 
 from __future__ import annotations
@@ -13,9 +15,9 @@ import json
 import sys
 
 from ringmath.diagnose import diagnose
-from ringmath.record import parse_document
+from ringmath.record import RecordError, loads, parse_document
 
-_RANK = {"satisfactory": 0, "incomplete": 1, "investigate": 2}
+_RANK = {"satisfactory": 0, "incomplete": 1, "retest": 2, "investigate": 3}
 
 
 def diagnose_document(doc) -> dict:
@@ -42,29 +44,37 @@ def main(argv: list[str] | None = None) -> int:
     args = parser.parse_args(argv)
     status = 0
     for name in args.files:
-        try:
-            if name == "-":
-                doc = json.load(sys.stdin)
-            else:
-                with open(name, encoding="utf-8") as fh:
-                    doc = json.load(fh)
-            result = diagnose_document(doc)
-        except OSError as exc:
-            print(f"{name}: cannot read: {exc.strerror or exc}", file=sys.stderr)
+        ok, line = _diagnose_file(name)
+        if ok:
+            print(line)
+            sys.stdout.flush()
+        else:
+            print(line, file=sys.stderr)
             status = 2
-            continue
-        except json.JSONDecodeError as exc:
-            print(f"{name}: not valid JSON (line {exc.lineno}, column {exc.colno}): {exc.msg}",
-                  file=sys.stderr)
-            status = 2
-            continue
-        except (ValueError, TypeError) as exc:
-            print(f"{name}: {exc}", file=sys.stderr)
-            status = 2
-            continue
-        print(json.dumps(result, separators=(",", ":"), allow_nan=False))
-        sys.stdout.flush()
     return status
+
+
+def _diagnose_file(name: str) -> tuple[bool, str]:
+    """(True, the JSON line) for one file, or (False, one line naming the file and field)."""
+    try:
+        if name == "-":
+            raw = sys.stdin.buffer.read()
+        else:
+            with open(name, "rb") as fh:
+                raw = fh.read()
+        result = diagnose_document(loads(raw.decode("utf-8")))
+    except OSError as exc:
+        return False, f"{name}: cannot read: {exc.strerror or exc}"
+    except UnicodeDecodeError as exc:
+        return False, f"{name}: not UTF-8 text (byte {exc.start})"
+    except json.JSONDecodeError as exc:
+        return False, f"{name}: not valid JSON (line {exc.lineno}, column {exc.colno}): {exc.msg}"
+    except RecordError as exc:
+        return False, f"{name}: {exc}"
+    except (ValueError, TypeError, RecursionError, OverflowError) as exc:
+        # Not expected from a parsed record; still one line, never a traceback.
+        return False, f"{name}: cannot diagnose: {type(exc).__name__}: {str(exc)[:200]}"
+    return True, json.dumps(result, separators=(",", ":"), allow_nan=False)
 
 
 if __name__ == "__main__":

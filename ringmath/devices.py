@@ -24,7 +24,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ringmath.record import Ocpd
+from ringmath.record.model import Ocpd
+from ringmath.record.values import RecordError, show
 
 #: Minimum voltage factor and nominal line-to-earth voltage, BS 7671:2018 Appendix 3 / 411.4.
 CMIN = 0.95
@@ -88,7 +89,8 @@ def _standard(text: str, path: str) -> str:
     for name in STANDARDS:
         if norm == name or (norm == f"{name}-1" and name in BREAKER_STANDARDS):
             return name
-    raise ValueError(f"{path}.standard: {text!r} is not one of {', '.join(STANDARDS)}")
+    raise RecordError(f"{path}.standard", "choice",
+                      f"{show(text)} is not one of {', '.join(STANDARDS)}")
 
 
 def _rating(rating_a: float, ratings, path: str, what: str) -> int:
@@ -96,8 +98,8 @@ def _rating(rating_a: float, ratings, path: str, what: str) -> int:
         if math.isclose(float(rating_a), r, abs_tol=1e-9):
             return r
     listed = ", ".join(str(r) for r in ratings)
-    raise ValueError(f"{path}.rating_a: {rating_a:g} A is not a {what} rating in the table "
-                     f"({listed} A)")
+    raise RecordError(f"{path}.rating_a", "choice",
+                      f"{rating_a:g} A is not a {what} rating in the table ({listed} A)")
 
 
 def device_limit(ocpd: Ocpd, path: str = "circuit.ocpd") -> DeviceLimit:
@@ -112,8 +114,8 @@ def device_limit(ocpd: Ocpd, path: str = "circuit.ocpd") -> DeviceLimit:
     if standard in BREAKER_STANDARDS:
         curve = (ocpd.curve or "").upper()
         if curve not in CURVE_MULTIPLE:
-            raise ValueError(f"{path}.curve: {ocpd.curve!r} is not one of "
-                             f"{', '.join(CURVE_MULTIPLE)} for a {standard} device")
+            raise RecordError(f"{path}.curve", "choice", f"{show(ocpd.curve)} is not one of "
+                              f"{', '.join(CURVE_MULTIPLE)} for a {standard} device")
         rating = _rating(ocpd.rating_a, BREAKER_RATINGS_A, path, standard)
         multiple = CURVE_MULTIPLE[curve]
         return _overcurrent_limit(
@@ -122,8 +124,8 @@ def device_limit(ocpd: Ocpd, path: str = "circuit.ocpd") -> DeviceLimit:
             f"BS 7671:2018 Table 41.3 basis: Zs = Cmin × U0 / Ia = 0.95 × 230 V / "
             f"({multiple} × {rating} A)")
     if ocpd.curve not in (None, ""):
-        raise ValueError(f"{path}.curve: a {standard} fuse has no tripping curve "
-                         f"(got {ocpd.curve!r})")
+        raise RecordError(f"{path}.curve", "choice", f"a {standard} fuse has no tripping "
+                          f"curve (got {show(ocpd.curve)})")
     return _fuse_limit(standard, ocpd.rating_a, path)
 
 

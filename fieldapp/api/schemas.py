@@ -23,6 +23,8 @@ class ReadingIn(Schema):
     client_id = fields.String(required=True, validate=validate.Regexp(
         CLIENT_ID_PATTERN, error="expected 8 to 64 letters, digits, '-' or '_'"))
     device = fields.String(load_default="", validate=validate.Length(max=200))
+    #: true: keep the value as typed although it looks like a slipped decimal point
+    keep = fields.Boolean(load_default=False)
 
 
 class Feedback(Schema):

@@ -13,15 +13,15 @@ from flask import jsonify, render_template, request
 from flask_login import current_user
 from marshmallow import ValidationError
 
-from fieldapp import changes
+from fieldapp import changes, labels, readings
 from fieldapp.api import bp
 from fieldapp.api.schemas import CircuitOut, ReadingIn, ReadingOut
 from fieldapp.auth.roles import TESTING_ROLES
 from fieldapp.extensions import db
 from fieldapp.models import Circuit
 from fieldapp.records import circuit_record, diagnose_circuit
+from fieldapp.ringtest import answer
 from fieldapp.ringtest import feedback as fb
-from fieldapp.ringtest.views import anchor_for, note_progress, reading_message
 from fieldapp.web import actor
 
 
@@ -66,26 +66,20 @@ def post_reading(circuit_id: int):
         data = ReadingIn().load(body)
     except ValidationError as error:
         return jsonify({"errors": error.messages}), 400
+    outlet = (readings.find_outlet(circuit, data["outlet"])
+              if data["step"] in changes.OUTLET_READINGS else None)
     try:
-        changes.check_ready_for_readings(circuit)
+        result = readings.save_reading(circuit, data["step"], data["value"], actor(),
+                                       outlet=outlet, client_id=data["client_id"],
+                                       keep=data["keep"])
     except changes.Refused as refused:
         return _error(409, "_state", str(refused))
-    outlet = None
-    if data["step"] in changes.OUTLET_READINGS:
-        outlet = next((o for o in changes.live_outlets(circuit) if o.key == data["outlet"]), None)
-        if outlet is None:
-            return _error(400, "outlet", "No such outlet on this circuit.")
-    if data["value"] is None or (isinstance(data["value"], str) and not data["value"].strip()):
-        return _error(400, "value", "Type the reading in ohms, or tap OL if the meter shows OL.")
-    who = actor()
-    try:
-        result = changes.set_reading(circuit, data["step"], data["value"], who,
-                                     outlet=outlet, client_id=data["client_id"])
-    except ValueError as error:
-        db.session.rollback()
-        return _error(400, "value", reading_message(error))
-    note_progress(circuit, "e2e" if outlet is None else data["step"], who)
-    db.session.commit()
+    except readings.BadReading as bad:
+        body = {"errors": {bad.field: [bad.message]}, "kind": bad.kind}
+        if bad.slip is not None:
+            body["slip"] = {"typed": bad.slip.typed, "suggested": bad.slip.suggested,
+                            "question": bad.slip.question}
+        return jsonify(body), 422 if bad.slip is not None else 400
     return jsonify(ReadingOut().dump(_reading_reply(circuit, data, result))), 200
 
 
@@ -93,9 +87,8 @@ def _reading_reply(circuit: Circuit, data: dict, result: changes.ReadingWrite) -
     diagnosis, _ = diagnose_circuit(circuit)
     key = data["outlet"] if data["step"] in changes.OUTLET_READINGS else None
     feedback = fb.feedback(diagnosis, data["step"], key)
-    leading = fb.leading(diagnosis)
-    step = "e2e" if data["step"] in changes.CIRCUIT_READINGS else data["step"]
-    next_anchor = _next_anchor(circuit, step)
+    leading = answer.leading(diagnosis)
+    next_anchor = readings.next_anchor(circuit, readings.step_of(data["step"]))
     return {
         "stored": not result.duplicate,
         "duplicate": result.duplicate,
@@ -107,22 +100,14 @@ def _reading_reply(circuit: Circuit, data: dict, result: changes.ReadingWrite) -
         "leading": leading,
         "next_anchor": next_anchor,
         "message": ("Already saved." if result.duplicate else
-                    f"Saved {fb.ohm(result.new)}."),
+                    f"Saved {labels.ohm(result.new)}."),
         "html": {
             "feedback": render_template("ringtest/_feedback.html", fbk=feedback,
                                         value=result.new),
             "leading": render_template("ringtest/_leading.html", leading=leading,
-                                       names=fb.outlet_names(diagnosis)),
+                                       names=labels.outlet_names(diagnosis)),
         },
     }
-
-
-def _next_anchor(circuit: Circuit, step: str) -> str | None:
-    if step == "e2e":
-        pending = [f for f in changes.CIRCUIT_READINGS if getattr(circuit, f) is None]
-        return anchor_for(pending[0], None) if pending else None
-    pending = [o.key for o in changes.live_outlets(circuit) if getattr(o, step) is None]
-    return anchor_for(step, pending[0]) if pending else None
 
 
 @bp.get("/circuits/<int:circuit_id>")
@@ -135,7 +120,7 @@ def get_circuit(circuit_id: int):
     return jsonify(CircuitOut().dump({
         "circuit_id": circuit.id,
         "record": circuit_record(circuit),
-        "leading": fb.leading(diagnosis),
+        "leading": answer.leading(diagnosis),
         "readings": (diagnosis or {}).get("readings") or [],
         "expected": (diagnosis or {}).get("expected"),
     }))

@@ -22,7 +22,7 @@ from fieldapp.review.forms import (
 )
 from fieldapp.sheets.context import sheet_context
 from fieldapp.sheets.inputs import job_diagnoses, job_inputs
-from fieldapp.web import actor, get_or_404
+from fieldapp.web import actor, get_or_404, valid_id
 from ringmath.messages import CAUTIONS
 
 #: Jobs waiting for a decision first, then those with the tester, then the finished ones.
@@ -163,8 +163,8 @@ def history(job_id: int):
     """The job's change log, newest first; ``circuit``, ``outlet`` (id) and ``field`` narrow
     it down to one reading."""
     job = get_or_404(Job, job_id)
-    circuit_id = request.args.get("circuit", type=int)
-    outlet_id = request.args.get("outlet", type=int)
+    circuit_id = request.args.get("circuit", type=valid_id)
+    outlet_id = request.args.get("outlet", type=valid_id)
     field = request.args.get("field") or None
     circuit = db.session.get(Circuit, circuit_id) if circuit_id else None
     outlet = db.session.get(Outlet, outlet_id) if outlet_id else None
@@ -177,10 +177,3 @@ def history(job_id: int):
                            circuit_ref=circuit_reference(circuit) if circuit else None,
                            outlet=outlet, field=FIELD_WORDS.get(field, field),
                            cautions=CAUTIONS)
-
-
-@bp.app_errorhandler(changes.Refused)
-def refused(error):
-    """A write that reached a locked job: nothing is kept, the user is told why."""
-    db.session.rollback()
-    return render_template("error.html", title="Not changed", message=str(error)), 409

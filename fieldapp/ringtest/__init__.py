@@ -4,4 +4,4 @@ from flask import Blueprint
 
 bp = Blueprint("ringtest", __name__, url_prefix="/circuits")
 
-from fieldapp.ringtest import views  # noqa: E402, F401
+from fieldapp.ringtest import filters, views  # noqa: E402, F401

@@ -7,19 +7,8 @@ words for the page and the JSON feedback.
 
 from __future__ import annotations
 
-STATUS_WORDS = {
-    "ok": "in band",
-    "high": "too high",
-    "low": "too low",
-    "open": "open circuit",
-    "pending": "not taken yet",
-}
-VERDICT_WORDS = {
-    "satisfactory": "Satisfactory",
-    "investigate": "Investigate",
-    "incomplete": "Not finished",
-}
-SEVERITY_WORDS = {"fault": "Fault", "warning": "Check", "info": "Note"}
+from fieldapp.labels import STATUS_WORDS, ohm
+
 #: What to do about a reading out of band, before trusting it (common practice: a reading
 #: is re-taken before it is believed; a poor probe contact is the usual cause).
 RETRY_WORDS = {
@@ -28,20 +17,6 @@ RETRY_WORDS = {
     "high": "Press the probes firmly onto the terminals and measure again.",
     "low": "Check that the probes are on the right terminals and measure again.",
 }
-
-
-def ohm(value, places: int = 2) -> str:
-    """A reading or resistance for display: "0.26 Ω", "OL" or "—"."""
-    if value is None:
-        return "—"
-    if value == "OL":
-        return "OL"
-    if isinstance(value, str):
-        try:
-            value = float(value)
-        except ValueError:
-            return value
-    return f"{value:.{places}f} Ω"
 
 
 def reading_entry(diagnosis: dict | None, field: str, key: str | None) -> dict | None:
@@ -85,42 +60,3 @@ def feedback(diagnosis: dict | None, field: str, key: str | None) -> dict | None
         "alert": status in ("high", "low", "open"),
         "pending": status == "pending",
     }
-
-
-def lead_finding(findings: list[dict]) -> dict | None:
-    """The finding the answer leads with: the first fault (the one the summary names), else
-    the first warning. A note (severity "info") never leads: it is listed with the others."""
-    for severity in ("fault", "warning"):
-        top = next((f for f in findings if f.get("severity") == severity), None)
-        if top is not None:
-            return top
-    return None
-
-
-def leading(diagnosis: dict | None) -> dict | None:
-    """The current leading statement: verdict, summary and the finding it rests on.
-
-    ``where`` lists the finding's outlets that its message does not already name as
-    "Label (id)", so the page does not say the same place twice."""
-    if not diagnosis:
-        return None
-    top = lead_finding(diagnosis.get("findings") or [])
-    verdict = diagnosis.get("verdict") or "incomplete"
-    message = (top or {}).get("message") or ""
-    return {
-        "verdict": verdict,
-        "verdict_words": VERDICT_WORDS.get(verdict, verdict),
-        "summary": diagnosis.get("summary") or "",
-        "finding": top,
-        "severity_words": SEVERITY_WORDS.get(top["severity"], "") if top else "",
-        "where": [o for o in (top or {}).get("outlets") or [] if f"({o})" not in message],
-    }
-
-
-def outlet_names(diagnosis: dict | None) -> dict[str, str]:
-    """Outlet id -> "a · Kitchen by door" for findings that list outlet ids."""
-    names = {}
-    for point in (diagnosis or {}).get("points") or []:
-        label = point.get("label") or ""
-        names[point["id"]] = f"{point['id']} · {label}" if label else point["id"]
-    return names

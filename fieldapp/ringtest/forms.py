@@ -8,16 +8,10 @@ from flask_wtf import FlaskForm
 from wtforms import BooleanField, HiddenField, SelectField, StringField, SubmitField
 from wtforms.validators import DataRequired, Length
 
+from fieldapp.labels import KIND_LABELS
 from fieldapp.web import options
 from ringmath.record import FCU_FUSE_RATINGS_A, OUTLET_KINDS
 
-KIND_LABELS = {
-    "twin_socket": "Twin socket",
-    "single_socket": "Single socket",
-    "fcu": "Fused connection unit (FCU)",
-    "junction_box": "Junction box",
-    "fixed_equipment": "Fixed equipment (no plug)",
-}
 SPUR_CSA = (("", "same as the ring"), ("1", "1.0 mm²"), ("1.5", "1.5 mm²"), ("2.5", "2.5 mm²"),
             ("4", "4 mm²"))
 
@@ -50,6 +44,7 @@ class ReadingForm(FlaskForm):
                                    "enterkeyhint": "send", "spellcheck": "false"})
     client_id = HiddenField(default=new_client_id)
     device = HiddenField()
+    keep = HiddenField()  # "1": keep the value as typed although it looks like a slip
     save = SubmitField("Save")
     ol = SubmitField("OL")
 

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from fieldapp import records
 from fieldapp.models import Job
-from fieldapp.transfer.documents import export_document
+from fieldapp.transfer.documents import sheet_document
 
 
 def _name(user) -> str | None:
@@ -38,5 +38,5 @@ def job_diagnoses(job: Job) -> tuple[list, list]:
 def job_inputs(job: Job) -> dict:
     """Keyword arguments for ``sheet_context``: document, diagnoses, people, problems."""
     diagnoses, problems = job_diagnoses(job)
-    return {"document": export_document(job), "diagnoses": diagnoses, "problems": problems,
+    return {"document": sheet_document(job), "diagnoses": diagnoses, "problems": problems,
             "people": job_people(job)}

@@ -3,11 +3,18 @@
 Export: the record builder's job document (fieldapp.records) plus each circuit's safety checks,
 put through the schema so every key is present. Import: the schema and ringmath check the whole
 document first (nothing is written when anything is wrong), then fieldapp.importer writes the
-job through fieldapp.changes (every value logged as a change from nothing), and the safety
-checks are restored as recorded, logged the same way.
+job through fieldapp.changes (every value logged as a change from nothing).
+
+An import never asserts that a person confirmed safe isolation: the file's safety block is kept
+as the file's statement (``Circuit.imported_safety``, logged), the circuit is marked imported
+by the importer at that time, and its safety checks stay unticked until someone confirms them
+here. The export gives the file's statement back unchanged until then (so a file passes
+through exactly); the pages and the sheet say "imported from a file by X at T".
 """
 
 from __future__ import annotations
+
+import json
 
 from sqlalchemy import select
 
@@ -16,10 +23,15 @@ from fieldapp.extensions import db
 from fieldapp.models import Circuit, Job, User
 from fieldapp.transfer.schemas import (
     DocumentError,
+    SafetySchema,
     document_errors,
     dump_document,
     load_document,
 )
+
+
+def dump_safety(block: dict) -> dict:
+    return SafetySchema().dump(block)
 
 #: Document key -> Circuit column, for the safety checks made before any reading.
 SAFETY_COLUMNS = {
@@ -30,7 +42,26 @@ SAFETY_COLUMNS = {
 }
 
 
+def imported_note(circuit: Circuit) -> str | None:
+    """"Imported from a file by X at T" for a circuit that came from a file, else None."""
+    if circuit.imported_at is None:
+        return None
+    who = circuit.imported_by.name if circuit.imported_by else "someone"
+    return f"imported from a file by {who} at {circuit.imported_at:%Y-%m-%d %H:%M} UTC"
+
+
+def file_safety_claim(circuit: Circuit) -> dict | None:
+    """The safety block the file carried, for an imported circuit not yet confirmed here."""
+    if circuit.imported_safety is None or circuit.safety_confirmed_by_id is not None \
+            or changes.safety_confirmed(circuit):
+        return None
+    return json.loads(circuit.imported_safety)
+
+
 def safety_block(circuit: Circuit) -> dict:
+    claim = file_safety_claim(circuit)
+    if claim is not None:
+        return claim
     block = {key: getattr(circuit, column) for key, column in SAFETY_COLUMNS.items()}
     block["confirmed_by"] = circuit.safety_confirmed_by.name if circuit.safety_confirmed_by \
         else None
@@ -51,30 +82,33 @@ def file_name(job: Job, suffix: str = ".ringtest.json") -> str:
     return f"{safe or 'job'}{suffix}"
 
 
-def _user_named(name: str | None) -> User | None:
-    if not name:
-        return None
-    users = list(db.session.scalars(select(User).where(User.name == name).limit(2)))
-    return users[0] if len(users) == 1 else None
+def sheet_document(job: Job) -> dict:
+    """The export document for the job sheet: a file's safety statement is printed as what it
+    is, "imported from a file by X at T", never as a confirmation."""
+    doc = export_document(job)
+    for record, circuit in zip(doc["circuits"], job.circuits, strict=True):
+        if file_safety_claim(circuit) is not None:
+            record["circuit"]["safety"] = {**{key: False for key in SAFETY_COLUMNS},
+                                           "confirmed_at": None,
+                                           "confirmed_by": imported_note(circuit)}
+    return doc
 
 
-def _restore_safety(circuit: Circuit, block: dict, actor: changes.Actor) -> list[str]:
-    """Set the recorded safety checks, each logged from nothing; notes for names not known."""
-    notes = []
-    for key, column in SAFETY_COLUMNS.items():
-        value = block[key]
-        if value:
-            setattr(circuit, column, value)
-            changes.log(circuit, column, None, value, actor)
-    name = block.get("confirmed_by")
-    user = _user_named(name)
-    if user is not None:
-        circuit.safety_confirmed_by_id = user.id
-        changes.log(circuit, "safety_confirmed_by_id", None, user.id, actor)
-    elif name:
-        notes.append(f"circuit {records.circuit_reference(circuit)}: the safety checks were "
-                     f"confirmed by {name!r}, who has no account here; the name is not kept")
-    return notes
+def _keep_file_safety(circuit: Circuit, block: dict, actor: changes.Actor) -> list[str]:
+    """Keep the file's safety block as its statement (logged), tick nothing; a note when it
+    claims a confirmation."""
+    claim = {key: (value.isoformat() if hasattr(value, "isoformat") else value)
+             for key, value in block.items()}
+    if not any(claim.values()):
+        return []
+    text = json.dumps(claim, sort_keys=True)
+    changes.update(circuit, {"imported_safety": text}, actor)
+    if not any(claim.get(key) for key in ("isolated", "locked_off", "proved_dead")):
+        return []
+    who = f" by {claim['confirmed_by']!r}" if claim.get("confirmed_by") else ""
+    return [f"circuit {records.circuit_reference(circuit)}: the file says the safety checks "
+            f"were done{who}; that is the file's statement, not a confirmation: confirm safe "
+            "isolation here before taking more readings"]
 
 
 def _feed_order_errors(doc) -> list[str]:
@@ -83,8 +117,8 @@ def _feed_order_errors(doc) -> list[str]:
     errors = []
     for i, rec in enumerate(doc["circuits"]):
         earlier = set()
-        for j, outlet in enumerate(rec["outlets"]):
-            feed = outlet["spur_from"]
+        for j, outlet in enumerate(rec.get("outlets") or []):  # both keys are optional
+            feed = outlet.get("spur_from")
             if feed and feed not in earlier:
                 errors.append(f"circuits[{i}].outlets[{j}].spur_from: {feed!r} comes later in "
                               "the list; list the outlet that feeds a spur before the spur")
@@ -127,7 +161,7 @@ def import_job(doc, actor: changes.Actor, importer_user: User) -> tuple[Job, lis
         circuits = db.session.scalars(
             select(Circuit).where(Circuit.job_id == job.id).order_by(Circuit.position))
         for circuit, rec in zip(circuits, data["circuits"], strict=True):
-            notes += _restore_safety(circuit, rec["circuit"]["safety"], actor)
+            notes += _keep_file_safety(circuit, dump_safety(rec["circuit"]["safety"]), actor)
         db.session.flush()
     except ValueError as exc:
         db.session.rollback()

@@ -7,8 +7,10 @@ from flask_wtf.file import FileField, FileRequired
 from wtforms import StringField, SubmitField
 from wtforms.validators import Length, Optional
 
-#: Largest job document accepted, in bytes (a big job is a few tens of kilobytes).
-MAX_DOCUMENT_BYTES = 2_000_000
+from fieldapp import limits
+
+#: Largest job document accepted, in bytes (fieldapp/limits.py says why).
+MAX_DOCUMENT_BYTES = limits.MAX_DOCUMENT_BYTES
 
 
 class ImportForm(FlaskForm):

@@ -18,8 +18,11 @@ from __future__ import annotations
 import math
 import re
 
-from marshmallow import RAISE, Schema, ValidationError, fields, validate
+from marshmallow import RAISE, Schema, ValidationError, fields, validate, validates_schema
 
+from fieldapp import limits
+from fieldapp.jobs.forms import BREAKER_STANDARDS, CURVES, OCPD_STANDARDS, RATINGS_A, RCD_MA
+from fieldapp.jobs.forms import RCD_TYPES as RCD_TYPE_CHOICES
 from ringmath import record
 
 OL = "OL"
@@ -53,8 +56,10 @@ def _number(value) -> float:
     if isinstance(value, bool):
         raise ValueError(value)
     if isinstance(value, str):
+        if len(value) > limits.MAX_READING_CHARS:
+            raise ValueError(value)
         value = value.strip().replace(",", ".")
-    number = float(value)
+    number = float(value)  # OverflowError for an integer beyond any float
     if not math.isfinite(number):
         raise ValueError(value)
     return number
@@ -75,7 +80,7 @@ class Number(fields.Field):
     def _deserialize(self, value, attr, data, **kwargs):
         try:
             return _number(value)
-        except (TypeError, ValueError):
+        except (TypeError, ValueError, OverflowError):
             raise self.make_error("invalid") from None
 
 
@@ -102,7 +107,7 @@ class Reading(fields.Field):
             return None
         try:
             return _number(value)
-        except (TypeError, ValueError):
+        except (TypeError, ValueError, OverflowError):
             raise self.make_error("invalid") from None
 
 
@@ -155,15 +160,37 @@ class StrictSchema(Schema):
         unknown = RAISE
 
 
+def _one_of_numbers(choices, unit: str) -> validate.OneOf:
+    """A number that is one of the form's choices (1e9 A is no device we know)."""
+    words = ", ".join(f"{c:g}" for c in choices)
+    return validate.OneOf([float(c) for c in choices], error=f"must be one of: {words} {unit}")
+
+
+#: The devices the circuit form offers: an import refuses any other, naming the field.
+STANDARDS = tuple(value for value, _ in OCPD_STANDARDS)
+CURVE_LETTERS = tuple(value for value, _ in CURVES if value)
+RCD_RATINGS_MA = tuple(float(value) for value, _ in RCD_MA if value)
+RCD_TYPES = tuple(value for value, _ in RCD_TYPE_CHOICES if value)
+
+
 class OcpdSchema(StrictSchema):
-    standard = _sized(20, min_len=1, required=True)
-    curve = _optional(_sized, max_len=1)
-    rating_a = Number(required=True)
+    standard = _choice(STANDARDS, required=True)
+    curve = _optional(_choice, choices=CURVE_LETTERS)
+    rating_a = Number(required=True, validate=_one_of_numbers(RATINGS_A, "A"))
+
+    @validates_schema
+    def _curve_fits_device(self, data, **_kwargs):
+        """As the circuit form: a breaker has a curve, a fuse has none."""
+        breaker = data.get("standard") in BREAKER_STANDARDS
+        if breaker and not data.get("curve"):
+            raise ValidationError("a circuit-breaker needs its curve (B, C or D)", "curve")
+        if not breaker and data.get("curve"):
+            raise ValidationError("a fuse has no curve", "curve")
 
 
 class RcdSchema(StrictSchema):
-    rated_ma = Number(required=True)
-    type = _optional(_sized, max_len=8)
+    rated_ma = Number(required=True, validate=_one_of_numbers(RCD_RATINGS_MA, "mA"))
+    type = _optional(_choice, choices=RCD_TYPES)
 
 
 class SafetySchema(StrictSchema):
@@ -219,7 +246,9 @@ class CircuitRecordSchema(StrictSchema):
     circuit = fields.Nested(CircuitSchema, required=True, error_messages={
         "required": "is required", "null": "may not be null"})
     end_to_end = fields.Nested(EndToEndSchema, load_default=lambda: EndToEndSchema().load({}))
-    outlets = _items(OutletSchema, load_default=list)
+    outlets = _items(OutletSchema, load_default=list, validate=validate.Length(
+        max=limits.MAX_OUTLETS_PER_CIRCUIT,
+        error=f"at most {limits.MAX_OUTLETS_PER_CIRCUIT} outlets on one circuit"))
 
 
 class JobSchema(StrictSchema):
@@ -228,7 +257,7 @@ class JobSchema(StrictSchema):
     client = _sized(200, load_default="")
     date = _optional(Date)
     tester = _optional(_sized, max_len=120)
-    notes = Text(load_default="")
+    notes = _sized(limits.MAX_NOTES_CHARS, load_default="")
 
 
 class JobDocumentSchema(StrictSchema):
@@ -236,8 +265,10 @@ class JobDocumentSchema(StrictSchema):
         record.FORMAT, error="must be {other}"))
     job = fields.Nested(JobSchema, required=True, error_messages={
         "required": "is required", "null": "may not be null"})
-    circuits = _items(CircuitRecordSchema, required=True, validate=validate.Length(
-        min=1, error="needs at least one circuit"))
+    circuits = _items(CircuitRecordSchema, required=True, validate=[
+        validate.Length(min=1, error="needs at least one circuit"),
+        validate.Length(max=limits.MAX_CIRCUITS_PER_JOB,
+                        error=f"at most {limits.MAX_CIRCUITS_PER_JOB} circuits in one job")])
 
 
 # ---------------------------------------------------------------- error reporting
@@ -281,10 +312,15 @@ def domain_errors(doc) -> list[str]:
     def attempt(fn, *args):
         try:
             fn(*args)
-        except ValueError as exc:
-            found.append(str(exc))
+        except (ValueError, OverflowError) as exc:
+            path = args[-1] if len(args) > 1 and isinstance(args[-1], str) else "document"
+            text = str(exc)
+            found.append(text if isinstance(exc, ValueError) else f"{path}: not a number")
             return False
         return True
+
+    if _too_big(doc):  # the schema reports the size; ringmath need not walk it all
+        return found
 
     circuits = doc.get("circuits") if isinstance(doc, dict) else None
     for i, rec in enumerate(circuits if isinstance(circuits, list) else []):
@@ -307,6 +343,16 @@ def domain_errors(doc) -> list[str]:
     if isinstance(doc, dict) and "circuits" in doc:
         attempt(record.parse_document, doc)
     return found
+
+
+def _too_big(doc) -> bool:
+    circuits = doc.get("circuits") if isinstance(doc, dict) else None
+    if not isinstance(circuits, list):
+        return False
+    if len(circuits) > limits.MAX_CIRCUITS_PER_JOB:
+        return True
+    return any(isinstance(rec, dict) and isinstance(rec.get("outlets"), list)
+               and len(rec["outlets"]) > limits.MAX_OUTLETS_PER_CIRCUIT for rec in circuits)
 
 
 def document_errors(doc) -> list[str]:

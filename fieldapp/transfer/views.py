@@ -7,11 +7,18 @@ import json
 from flask import Response, flash, redirect, render_template, request, url_for
 from flask_login import current_user, login_required
 
+from fieldapp import safejson
 from fieldapp.auth.roles import TESTING_ROLES, role_required
 from fieldapp.extensions import db
 from fieldapp.models import Job
 from fieldapp.transfer import bp
-from fieldapp.transfer.documents import export_document, file_name, import_job
+from fieldapp.transfer.documents import (
+    export_document,
+    file_name,
+    file_safety_claim,
+    import_job,
+    imported_note,
+)
 from fieldapp.transfer.forms import MAX_DOCUMENT_BYTES, ImportForm
 from fieldapp.transfer.schemas import DocumentError, ImportErrorsSchema, ImportResultSchema
 from fieldapp.web import actor, get_or_404
@@ -39,12 +46,16 @@ def parse_upload(raw: bytes):
     if len(raw) > MAX_DOCUMENT_BYTES:
         raise DocumentError([f"document: larger than {MAX_DOCUMENT_BYTES // 1000} kB"])
     try:
-        return json.loads(raw.decode("utf-8-sig"))
+        return safejson.loads(raw.decode("utf-8-sig"))
     except UnicodeDecodeError:
         raise DocumentError(["document: not UTF-8 text"]) from None
     except json.JSONDecodeError as exc:
         raise DocumentError([f"document: not valid JSON ({exc.msg} at line {exc.lineno}, "
                              f"column {exc.colno})"]) from None
+    except ValueError as exc:  # nested too deeply, NaN, an integer of thousands of digits
+        text = str(exc)
+        raise DocumentError([text if text.startswith("document: ") else
+                             f"document: not valid JSON ({text.split(':')[0]})"]) from None
 
 
 def _with_reference(doc, reference: str | None):
@@ -94,3 +105,14 @@ def import_api():
     return _json(ImportResultSchema().dump(
         {"job_id": job.id, "reference": job.reference, "url": url, "notes": notes}), 201,
         Location=url)
+
+
+@bp.app_template_global("imported_note")
+def imported_note_global(circuit) -> str | None:
+    """"imported from a file by X at T" for the circuit pages (None when typed in here)."""
+    return imported_note(circuit)
+
+
+@bp.app_template_global("file_claim")
+def file_claim_global(circuit) -> dict | None:
+    return file_safety_claim(circuit)

@@ -74,8 +74,12 @@ def test_import_creates_a_job_in_progress_owned_by_the_importer(app, tester):
         assert job.status == "in_progress"
         assert job.tester.username == "test" and job.creator.username == "test"
         first = job.circuits[0]
+        # the file's ticks are its statement, never a confirmation made here
         assert (first.safety_isolated, first.safety_locked_off, first.safety_proved_dead) == (
-            True, True, True)
+            False, False, False)
+        assert first.safety_confirmed_by_id is None
+        assert json.loads(first.imported_safety)["isolated"] is True
+        assert first.imported_by.username == "test" and first.imported_at is not None
         assert (first.board, first.way) == ("DB1", "4")
         assert [o.key for o in first.outlets] == ["a", "b", "c", "d"]
         assert job.circuits[1].r2 == "OL" and job.circuits[1].outlets[0].le is None
@@ -100,7 +104,9 @@ def test_every_imported_value_is_logged_from_nothing(app, tester):
             for name, value in rec["end_to_end"].items():
                 assert logged.get(("circuit", circuit.id, name)) == (
                     None if value is None else ("OL" if value == "OL" else repr(value)))
-            assert logged.get(("circuit", circuit.id, "safety_isolated")) == "true"
+            assert ("circuit", circuit.id, "safety_isolated") not in logged
+            assert json.loads(logged[("circuit", circuit.id, "imported_safety")]) == {
+                **rec["circuit"]["safety"]}
             outlets = db.session.scalars(sa.select(Outlet).where(
                 Outlet.circuit_id == circuit.id).order_by(Outlet.position)).all()
             for outlet, spec in zip(outlets, rec["outlets"], strict=True):
@@ -235,21 +241,52 @@ def test_a_write_that_fails_half_way_is_rolled_back(app, tester, monkeypatch):
 # ---------------------------------------------------------------- people named in the file
 
 
-def test_names_in_the_file_are_matched_to_accounts(app, tester):
+def test_an_import_never_says_a_person_confirmed_safe_isolation(app, apprentice, parse):
+    """An apprentice's file names the supervisor and a 2020 date: the pages, the sheet and
+    the next export say it came from a file; readings need a confirmation made here."""
     doc = _doc()
     doc["job"]["tester"] = "Dana Someone-Else"
-    doc["circuits"][0]["circuit"]["safety"]["confirmed_by"] = TESTER
-    doc["circuits"][1]["circuit"]["safety"]["confirmed_by"] = "Nobody Known"
-    body = tester.post("/api/jobs/import", json=doc).get_json()
-    assert body["notes"] == [
+    doc["circuits"][0]["circuit"]["safety"].update(
+        confirmed_by="Hywel Test-Supervisor", confirmed_at="2020-01-06T09:00:00")
+    body = apprentice.post("/api/jobs/import", json=doc).get_json()
+    assert body["notes"][0] == (
         "job.tester: the file names 'Dana Someone-Else'; the job is now tested by "
-        f"{TESTER} (the importer)",
-        "circuit DB1/5: the safety checks were confirmed by 'Nobody Known', who has no "
-        "account here; the name is not kept"]
-    exported = tester.get(f"/jobs/{body['job_id']}/export.json").get_json()
-    assert exported["job"]["tester"] == TESTER
-    assert exported["circuits"][0]["circuit"]["safety"]["confirmed_by"] == TESTER
-    assert exported["circuits"][1]["circuit"]["safety"]["confirmed_by"] is None
+        "Ffion Test-Apprentice (the importer)")
+    assert any("that is the file's statement, not a confirmation" in n for n in body["notes"])
+    from fieldapp.extensions import db
+    from fieldapp.models import Job
+
+    with app.app_context():
+        job = db.session.get(Job, body["job_id"])
+        cid = job.circuits[0].id
+        from fieldapp.sheets.inputs import job_inputs
+
+        sheet_safety = job_inputs(job)["document"]["circuits"][0]["circuit"]["safety"]
+    page = parse(apprentice.get(f"/circuits/{cid}/test/safety"))
+    text = " ".join(page.get_text().split())
+    assert "Confirmed by" not in text and "Hywel" not in text
+    assert "imported from a file by Ffion Test-Apprentice at" in text
+    assert "readings were not taken in this app" in text
+    assert page.select_one('input[name="isolated"]') is not None  # still to be confirmed
+    assert "imported from a file by Ffion" in " ".join(
+        parse(apprentice.get(f"/circuits/{cid}/results")).get_text().split())
+    assert sheet_safety["isolated"] is False
+    assert sheet_safety["confirmed_by"].startswith("imported from a file by Ffion")
+    refused = apprentice.post(f"/api/circuits/{cid}/readings", json={
+        "step": "r1", "value": "0.5", "client_id": "import-safe-0001"})
+    assert refused.status_code == 409
+    # the file's statement passes through an export unchanged (it is still the file's)
+    exported = apprentice.get(f"/jobs/{body['job_id']}/export.json").get_json()
+    assert exported["circuits"][0]["circuit"]["safety"]["confirmed_by"] == \
+        "Hywel Test-Supervisor"
+    # once a person here confirms, the page and the export name that person
+    assert apprentice.post(f"/circuits/{cid}/test/safety", data={
+        "isolated": "y", "locked_off": "y", "proved_dead": "y"}).status_code == 302
+    exported = apprentice.get(f"/jobs/{body['job_id']}/export.json").get_json()
+    assert exported["circuits"][0]["circuit"]["safety"]["confirmed_by"] == \
+        "Ffion Test-Apprentice"
+    assert "Confirmed by Ffion Test-Apprentice" in parse(
+        apprentice.get(f"/circuits/{cid}/test/safety")).get_text()
 
 
 # ---------------------------------------------------------------- pages and roles

@@ -82,6 +82,41 @@ def test_bad_input_is_one_line_naming_file_and_field(tmp_path, capsys, content, 
     assert len(captured.out.strip().splitlines()) == 1  # the good file is still diagnosed
 
 
+def _reading_literal(literal: str) -> str:
+    doc = json.dumps({**GOOD, "outlets": [{"id": "a", "ln": "HERE"}]})
+    return doc.replace('"HERE"', literal)
+
+
+@pytest.mark.parametrize(("content", "expect"), [
+    pytest.param("[" * 100_000 + "]" * 100_000, "record: nested more than", id="deep-arrays"),
+    pytest.param('{"a":' * 100_000 + "1" + "}" * 100_000, "record: nested more than",
+                 id="deep-objects"),
+    pytest.param(_reading_literal("1" * 400), "outlets[0].ln: a number of 400 digits is too long",
+                 id="400-digit-reading"),
+    pytest.param(_reading_literal('"' + "1" * 400 + '"'), "outlets[0].ln: a number of 400",
+                 id="400-digit-text-reading"),
+    pytest.param(_reading_literal("1" * 5000), "outlets[0].ln: a number of 5000 digits",
+                 id="5000-digit-integer"),
+    pytest.param(json.dumps({**GOOD, "circuit": {**GOOD["circuit"], "ze_ohm": "ZE"}}).replace(
+        '"ZE"', "9" * 5000), "circuit.ze_ohm: a number of 5000 digits", id="5000-digit-ze"),
+    pytest.param(_reading_literal('"0_52"'), "outlets[0].ln", id="underscore-digits"),
+    pytest.param(_reading_literal("NaN"), "outlets[0].ln", id="nan"),
+])
+def test_hostile_input_is_one_line_and_exit_2(tmp_path, capsys, content, expect):
+    bad = _write(tmp_path, "bad.json", content)
+    assert main(["diagnose", bad]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1
+    assert err[0].startswith(f"{bad}: {expect}")
+
+
+def test_not_utf8(tmp_path, capsys):
+    bad = tmp_path / "bad.json"
+    bad.write_bytes(b'{"circuit": "\xff"}')
+    assert main(["diagnose", str(bad)]) == 2
+    assert "not UTF-8" in capsys.readouterr().err
+
+
 def test_missing_file(capsys):
     assert main(["diagnose", "/nonexistent/ring.json"]) == 2
     assert "cannot read" in capsys.readouterr().err
@@ -98,8 +133,13 @@ def test_job_document_with_two_circuits(tmp_path, capsys):
 
 def test_module_entry_point_runs_without_traceback(tmp_path):
     bad = _write(tmp_path, "bad.json", json.dumps({**GOOD, "outlets": "x"}))
-    proc = subprocess.run([sys.executable, "-m", "ringmath", "diagnose", bad],
+    deep = _write(tmp_path, "deep.json", "[" * 100_000 + "]" * 100_000)
+    long = _write(tmp_path, "long.json", _reading_literal("1" * 400))
+    huge = _write(tmp_path, "huge.json", _reading_literal("1" * 5000))
+    proc = subprocess.run([sys.executable, "-m", "ringmath", "diagnose", bad, deep, long, huge],
                           capture_output=True, text=True, cwd=ROOT, timeout=60)
     assert proc.returncode == 2
     assert "Traceback" not in proc.stderr
-    assert "outlets" in proc.stderr
+    lines = proc.stderr.strip().splitlines()
+    assert [line.split(": ")[1] for line in lines] == ["outlets", "record", "outlets[0].ln",
+                                                         "outlets[0].ln"]

@@ -1,0 +1,24 @@
+"""Sizes the app accepts on every path (form, JSON API, import), chosen for real boards.
+
+- ``MAX_OUTLETS_PER_CIRCUIT`` = 60: a ring final circuit serves up to 100 m² of floor
+  (BS 7671 Appendix 15, common practice); even a large open-plan ring rarely carries more
+  than about 30 points, so 60 outlets (spurs and FCUs included) leaves room and no more.
+- ``MAX_CIRCUITS_PER_JOB`` = 60: a job covers one installation; a large three-phase board
+  has at most about 48 single-phase ways, and few of them are rings.
+- Text fields: the lengths of the forms and the database columns; job notes 4,000
+  characters.
+- ``MAX_DOCUMENT_BYTES`` = 1 MB: the largest job these limits allow is about 600 kB as
+  indented JSON; ``MAX_CONTENT_LENGTH`` (the whole request) a little more for the form's
+  multipart wrapping.
+- ``MAX_READING_CHARS`` = 32: a typed reading ("0,52", "OL"); longer text is not a reading.
+
+Bounded input keeps every output bounded too: the job sheet PDF of the largest job is a
+fixed number of pages.
+"""
+
+MAX_OUTLETS_PER_CIRCUIT = 60
+MAX_CIRCUITS_PER_JOB = 60
+MAX_NOTES_CHARS = 4000
+MAX_DOCUMENT_BYTES = 1_000_000
+MAX_CONTENT_LENGTH = 1_200_000
+MAX_READING_CHARS = 32

@@ -1,0 +1,50 @@
+"""Template filters and globals of the guided test (registered on the app by the blueprint)."""
+
+from __future__ import annotations
+
+import logging
+
+from markupsafe import Markup, escape
+
+from fieldapp import labels
+from fieldapp.records import diagnose_circuit
+from fieldapp.ringtest import bp
+
+log = logging.getLogger(__name__)
+
+
+@bp.app_template_filter("ohm")
+def ohm_filter(value, places: int = 2) -> str:
+    return labels.ohm(value, places)
+
+
+@bp.app_template_filter("named")
+def named_filter(ids, names: dict | None) -> str:
+    """Outlet ids as "a · Kitchen, c · Hall" (ids alone where the name is unknown)."""
+    return ", ".join((names or {}).get(str(i), str(i)) for i in ids or ())
+
+
+@bp.app_template_global("term")
+def term(word: str, shown: str | None = None) -> Markup:
+    """A trade term that opens its one-line explanation on tap (no script, no tooltip)."""
+    meaning = labels.TERMS.get(word)
+    text = escape(shown or word)
+    if meaning is None:
+        return Markup(text)
+    return Markup('<details class="term"><summary>{}</summary><span class="term-says">{}'
+                  "</span></details>").format(text, meaning)
+
+
+@bp.app_template_global("circuit_verdict")
+def circuit_verdict(circuit) -> dict:
+    """{"verdict", "words"} for a circuit card; "Not assessed" when it cannot be diagnosed.
+    One bad circuit never breaks a page that lists several."""
+    try:
+        diagnosis, reason = diagnose_circuit(circuit)
+    except Exception:  # a card must render whatever one circuit's data holds
+        log.exception("diagnosis failed for circuit %s", circuit.id)
+        diagnosis, reason = None, "diagnosis failed"
+    if not diagnosis:
+        return {"verdict": "none", "words": "Not assessed", "reason": reason}
+    verdict = diagnosis.get("verdict") or "incomplete"
+    return {"verdict": verdict, "words": labels.verdict_word(verdict), "reason": None}
