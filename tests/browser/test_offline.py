@@ -17,7 +17,8 @@ pytestmark = pytest.mark.browser
 
 
 def wait_for_worker(page) -> None:
-    page.wait_for_function("navigator.serviceWorker && navigator.serviceWorker.controller !== null")
+    page.wait_for_function("() => !!navigator.serviceWorker"
+                           " && navigator.serviceWorker.controller !== null")
 
 
 def kept(page, path: str) -> bool:
