@@ -36,11 +36,16 @@ const OPTIONAL = [
   "/static/icons/icon.svg",
 ];
 
+/* The first install takes the files the page has just loaded from the browser's cache (no
+ * second download, not even a revalidation); a new version asks the server for each file. */
 self.addEventListener("install", (event) => {
   event.waitUntil((async () => {
+    const first = !(await caches.keys()).some((name) => name.endsWith("-shell"));
+    const mode = first ? "force-cache" : "no-cache";
+    const get = (url) => new Request(url, { cache: mode, credentials: "same-origin" });
     const cache = await caches.open(SHELL_CACHE);
-    await cache.addAll(REQUIRED);
-    await Promise.all(OPTIONAL.map((url) => cache.add(url).catch(() => undefined)));
+    await cache.addAll(REQUIRED.map(get));
+    await Promise.all(OPTIONAL.map((url) => cache.add(get(url)).catch(() => undefined)));
     await self.skipWaiting();
   })());
 });
