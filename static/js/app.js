@@ -58,6 +58,7 @@
 
   function applyReply(card, reply) {
     RT.overlay.setValue(card, reply.value, false);
+    card.setAttribute("data-server-value", util.ohm(reply.value));
     var feedback = card.querySelector("[data-feedback]");
     if (feedback && reply.html) feedback.innerHTML = reply.html.feedback;
     var label = card.querySelector("form label");
@@ -79,7 +80,7 @@
       applyReply(entry.card, d.item.reply || {});
       if (entry.focus && d.item.reply) focusNext(d.item.reply.next_anchor);
     } else if (d.state === "refused") {
-      RT.overlay.setValue(entry.card, d.item.body.value, false);
+      RT.overlay.restore(entry.card); // nothing was stored: the card shows what the server has
       note(entry.card, "");
       showError(entry.form, "Not accepted: " + d.item.reason + " (kept in the list at the top until you enter it again or discard it).");
     }
@@ -103,8 +104,8 @@
     var body = { step: field, outlet: key, value: value, client_id: idInput.value || util.newClientId() };
     var where = key ? " at outlet " + key : clientKey ? " at the new outlet" : "";
     var words = (util.NAMES[field] || field) + where + " = " + value;
-    var entry = RT.forms.item("reading", body, words,
-      "reading:" + field + ":" + (key || clientKey || ""), clientKey);
+    var entry = RT.forms.item("reading", body, words, RT.forms.target("reading", field,
+      key || clientKey), clientKey);
     RT.forms.queue(entry).then(function () {
       pending[entry.id] = { card: card, form: form, focus: true };
       idInput.value = util.newClientId(); // the next reading from this form is a new write

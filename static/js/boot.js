@@ -88,8 +88,11 @@
   function start() {
     userChanged(); // before the worker keeps this page
     register();
-    if (RT.forms) RT.forms.start();
-    if (RT.app) RT.app.start();
+    // each part on its own: one failing never leaves the others (or the plain forms) broken
+    [RT.forms, RT.app].forEach(function (part) {
+      if (!part) return;
+      try { part.start(); } catch (error) { if (root.console) console.error(error); }
+    });
     document.addEventListener("submit", onLogout, true);
     root.addEventListener("ringtest:outbox", function (event) {
       if (event.detail && event.detail.done) {

@@ -21,6 +21,12 @@
       needs: needs || null };
   }
 
+  /* What an item changes, so that a new entry for it replaces a refused one: the same
+   * circuit, the same reading (or label) of the same outlet. */
+  function target(kind, field, outlet) {
+    return [kind, RT.overlay.page().circuitId, field, outlet || ""].join(":");
+  }
+
   function sync() {
     var sw = navigator.serviceWorker;
     if (!sw) return;
@@ -126,7 +132,7 @@
       var clientKey = card.getAttribute("data-client-key");
       var entry = item("label", { label: text, outlet_key: key, client_id: util.newClientId() },
         "Outlet " + (key || "new") + " renamed “" + text + "”",
-        "label:" + (key || clientKey), key ? null : clientKey);
+        target("label", "label", key || clientKey), key ? null : clientKey);
       queue(entry).then(function () {
         document.querySelectorAll("article[data-outlet]").forEach(function (c) {
           var same = key ? c.getAttribute("data-outlet") === key
@@ -137,7 +143,8 @@
       }, function (err) { storageFull(form, err); });
     });
     var form0 = card.querySelector("form.reading-form");
-    card.insertBefore(details, form0 ? form0.nextSibling : null);
+    var holder = form0 && (form0.closest("details.correct") || form0);
+    card.insertBefore(details, holder && holder.parentNode === card ? holder.nextSibling : null);
   }
 
   // ------------------------------------------------------------ next step
@@ -146,7 +153,7 @@
     var step = form.getAttribute("data-next");
     var url = form.getAttribute("data-next-url");
     var entry = item("step", { step: step }, "Moved on to " + (step === "le" ? "step 3" :
-      step === "ln" ? "step 2" : "the results"), "step:" + step);
+      step === "ln" ? "step 2" : "the results"), target("step", step));
     var go = function () { location.assign(url); };
     queue(entry).then(function () {
       if (!navigator.onLine) { go(); return undefined; }
@@ -176,5 +183,6 @@
     document.addEventListener("ringtest:card", function (event) { renameButton(event.detail); });
   }
 
-  RT.forms = { queue: queue, item: item, storageFull: storageFull, start: start, sync: sync };
+  RT.forms = { queue: queue, item: item, target: target, storageFull: storageFull,
+    start: start, sync: sync };
 })(self);

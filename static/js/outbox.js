@@ -145,7 +145,7 @@
       body: { step: step, outlet: outlet, value: value, client_id: id, device: get("device") },
       words: old.label || (RT.util.NAMES[step] || step) + (outlet ? " at outlet " + outlet : "") +
         " = " + value,
-      target: "reading:" + match[1] + ":" + step + ":" + (outlet || ""), needs: null,
+      target: ["reading", match[1], step, outlet || ""].join(":"), needs: null,
       state: state, savedAt: old.savedAt || new Date().toISOString(), migrated: true,
       reason: state === "refused" ? "Not accepted before this version of the app." : null,
     };

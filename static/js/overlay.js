@@ -112,6 +112,9 @@
   function setValue(card, value, waiting) {
     var strong = card.querySelector("[data-value]");
     if (!strong) return;
+    if (!card.hasAttribute("data-server-value")) {  // what the server's copy showed
+      card.setAttribute("data-server-value", strong.closest(".now").hidden ? "" : strong.textContent);
+    }
     strong.textContent = util.ohm(value);
     var line = strong.closest(".now");
     if (line) line.hidden = false;
@@ -124,6 +127,18 @@
       tag.remove();
     }
     card.classList.remove("pending");
+  }
+
+  /* Back to what the server's copy showed (a refused item changed nothing there). */
+  function restore(card) {
+    var strong = card.querySelector("[data-value]");
+    if (!strong || !card.hasAttribute("data-server-value")) return;
+    var shown = card.getAttribute("data-server-value");
+    strong.textContent = shown;
+    strong.closest(".now").hidden = !shown;
+    var tag = card.querySelector(".queued");
+    if (tag) tag.remove();
+    if (!shown) card.classList.add("pending");
   }
 
   function setLabel(card, label) {
@@ -210,5 +225,6 @@
   }
 
   RT.overlay = { apply: apply, outletCard: outletCard, findCard: findCard, setValue: setValue,
+    restore: restore,
     setLabel: setLabel, adoptKey: adoptKey, addSource: addSource, page: page };
 })(self);

@@ -16,9 +16,28 @@ from playwright.sync_api import expect
 pytestmark = pytest.mark.browser
 
 
+@pytest.fixture(autouse=True)
+def no_script_errors(page):
+    """Every test here also fails on an uncaught error in the page's scripts."""
+    errors = []
+    page.on("pageerror", lambda error: errors.append(str(error)))
+    yield
+    assert errors == []
+
+
 def wait_for_worker(page) -> None:
+    # the worker's install fetches the shell: slow when the machine is busy
     page.wait_for_function("() => !!navigator.serviceWorker"
-                           " && navigator.serviceWorker.controller !== null")
+                           " && navigator.serviceWorker.controller !== null", timeout=40_000)
+
+
+def until(page, script: str, arg=None, timeout_ms: int = 15_000) -> None:
+    """Evaluate ``script`` (an async function is awaited) until it returns true."""
+    waited = 0
+    while not page.evaluate(script, arg):
+        assert waited < timeout_ms, f"still false after {timeout_ms} ms: {script}"
+        page.wait_for_timeout(100)
+        waited += 100
 
 
 def kept(page, path: str) -> bool:
@@ -27,8 +46,8 @@ def kept(page, path: str) -> bool:
 
 
 def wait_until_kept(page, path: str) -> None:
-    page.wait_for_function(
-        "async (path) => !!(await caches.match(new URL(path, location.href).href))", arg=path)
+    until(page, "async (path) => !!(await caches.match(new URL(path, location.href).href))",
+          path)
 
 
 def open_step(page, circuit_id: int, step: str = "ln") -> str:
@@ -53,8 +72,8 @@ def status(page):
 
 def wait_sent(page, count: int) -> None:
     """Until ``count`` items of the outbox have been taken by the server."""
-    page.wait_for_function("async (n) => (await window.ringtestOffline.items())"
-                           ".filter(i => i.state === 'sent').length >= n", arg=count)
+    until(page, "async (n) => (await window.ringtestOffline.items())"
+          ".filter(i => i.state === 'sent').length >= n", count)
 
 
 # ---------------------------------------------------------------- no stale screen
@@ -210,6 +229,8 @@ def test_a_refused_replay_is_kept_and_shown_until_discarded(apprentice, live_app
     refused = page.locator("#not-accepted")
     expect(refused).to_contain_text("L–N at outlet a = 0.27")
     expect(refused).to_contain_text("approved")
+    expect(card(page, "r-ln-a").locator(".now")).to_be_hidden()  # nothing claimed as recorded
+    expect(card(page, "r-ln-a").locator(".js-error")).to_contain_text("Not accepted")
     expect(status(page)).not_to_contain_text("Sent")
     assert outlet_reading(live_app, circuit_id, "a") is None
     assert [i["state"] for i in items(page)] == ["refused"]
@@ -221,6 +242,40 @@ def test_a_refused_replay_is_kept_and_shown_until_discarded(apprentice, live_app
     page.locator("#not-accepted").get_by_role("button", name="Discard").tap()
     expect(page.locator("#not-accepted")).to_have_count(0)
     assert items(page) == []
+
+
+def set_safety(live_app, circuit_id: int, confirmed: bool) -> None:
+    from fieldapp import changes
+    from fieldapp.models import Circuit, User
+
+    def write(db):
+        who = db.session.scalar(db.select(User).where(User.username == "apprentice"))
+        changes.update(db.session.get(Circuit, circuit_id), {"safety_proved_dead": confirmed},
+                       changes.Actor(who.id, "browser test"))
+        db.session.commit()
+
+    live_app.query(write)
+
+
+def test_a_refused_reading_entered_again_leaves_the_list(apprentice, live_app, context):
+    page = apprentice
+    _, circuit_id = seed_circuit(live_app)
+    open_step(page, circuit_id)
+    context.set_offline(True)
+    try:
+        enter(page, "r-ln-b", "0.28")
+        expect(card(page, "r-ln-b").locator(".queued")).to_be_visible()
+    finally:
+        set_safety(live_app, circuit_id, False)  # the safety checks were withdrawn meanwhile
+        context.set_offline(False)
+    expect(page.locator("#not-accepted")).to_contain_text("Confirm safe isolation first")
+    assert outlet_reading(live_app, circuit_id, "b") is None
+    set_safety(live_app, circuit_id, True)
+    enter(page, "r-ln-b", "0.28")  # entered again: sent, and the refused one is gone
+    wait_sent(page, 1)
+    expect(page.locator("#not-accepted")).to_have_count(0)
+    assert [i["state"] for i in items(page)] == ["sent"]
+    assert outlet_reading(live_app, circuit_id, "b") == "0.28"
 
 
 def approve(live_app, job_id: int) -> None:
@@ -302,8 +357,8 @@ def test_items_of_the_old_outbox_are_moved_once_and_sent_only_when_claimed(appre
     assert outlet_reading(live_app, circuit_id, "a") is None  # not sent without an owner
     held.get_by_role("button", name="Send them as mine").tap()
     expect(held).to_have_count(0)
-    page.wait_for_function("async () => (await window.ringtestOffline.items())"
-                           ".every(i => i.state === 'sent')")
+    until(page, "async () => (await window.ringtestOffline.items())"
+          ".every(i => i.state === 'sent')")
     assert outlet_reading(live_app, circuit_id, "a") == "0.31"
     assert writes_with(live_app, old_id) == 1
 
@@ -332,8 +387,8 @@ def test_logging_out_forgets_the_pages_kept_for_offline(apprentice, live_app):
     url = open_step(page, circuit_id)
     page.get_by_role("button", name="Log out").tap()
     expect(page.get_by_role("heading", name="Log in")).to_be_visible()
-    page.wait_for_function("async (path) => !(await caches.match(new URL(path, location.href)"
-                           ".href))", arg=url)
+    until(page, "async (path) => !(await caches.match(new URL(path, location.href).href))",
+          url)
     assert page.evaluate("async () => (await caches.keys()).some(k => k.endsWith('-shell'))")
 
 
@@ -373,7 +428,7 @@ def test_a_new_worker_deletes_every_older_cache(page):
     wait_for_worker(page)
     version = re.search(r'const VERSION = "([^"]+)"', page.evaluate(
         "fetch('/sw.js').then(r => r.text())")).group(1)
-    page.wait_for_function("async () => (await caches.keys()).length === 1")
+    until(page, "async () => (await caches.keys()).length === 1")
     assert page.evaluate("caches.keys()") == [f"{version}-shell"]
     shell = page.evaluate(f"caches.open('{version}-shell').then(c => c.keys())"
                           ".then(keys => keys.map(k => new URL(k.url).pathname))")
