@@ -1,28 +1,38 @@
-"""Diagnosis benchmark on seeded simulated rings: prints its figures, asserts nothing.
+"""Diagnosis benchmark on seeded simulated rings under site conditions: prints, asserts nothing.
 
-For every fault class (at least 30 cases each) and healthy rings (at least 90), simulated with
-``ringmath.simulate`` (random ring length, outlet count and spacing, recorded spurs and fused
-spurs, a meter model, shuffled visiting order), it reports:
+For each condition (``bench/diag_conditions.py``: clean meter, probe contact scatter, leads not
+nulled on every reading or on one step, a warmer cable for steps 2–3, worn socket contacts read
+from the front, a metallic cpc, an unsuitable meter, two faults at once, the typical site and
+a random site mix) it simulates healthy rings and rings with each fault class
+(``ringmath.simulate``: exact nodal analysis of a named-node netlist, random ring length,
+outlet count and spacing, spurs and fused spurs, shuffled visiting order) and prints:
 
-* detection rate: a fault-severity finding of a fault code was raised;
-* right-class rate: the true fault (and conductor or step where it has one) is among the top
-  findings (an exact tie counts: the readings cannot tell those apart);
-* located rate, where the readings allow it: the finding names the right outlets; and for
-  every class how often a place is given at all ("placed") and how often a given place is
-  right ("placed right"), so a confident wrong place cannot hide;
-* false alarms: healthy rings not judged satisfactory;
-* the same detection and false-alarm figures for the hand rule (every ring reading within
-  0.05 Ω of (r1+rn)/4 or (r1+r2)/4, the ends within 0.05 Ω, no OL);
-* optimistic R1+R2: points whose R1+R2 for Zs is below the true in-service value;
-* median diagnosis time for rings of 10, 20 and 40 outlets.
+* healthy rings: false alarms (verdict not "satisfactory"); "wiring" = a wiring fault
+  (fault severity) named at all, and at >= 80 % confidence; how many were called "retest";
+* set-up errors that must be corrected (leads beyond ±0.05 Ω, worn sockets, an unsuitable
+  meter; ``diag_scoring.must_report``): "named" = verdict "retest" or the leading finding is a
+  set-up finding (code convention in ``bench/diag_scoring.py``);
+* faults: detected (verdict not "satisfactory"), right class (the true fault, with its
+  conductor or step, among the top wiring findings; where a set-up error is present too,
+  naming the set-up error also counts), located (the finding names the right outlets, where
+  the readings can place it at all), and the same for faults above the limit
+  (``diag_scoring.VISIBLE_OHM``: noise-free readings at least 0.05 Ω and 3 contact sd from any
+  sound ring);
+* the 0.05 Ω hand rule beside them (flags on healthy rings, detection on faulty ones);
+* calibration: the leading finding's stated confidence in bins vs how often it is true, and
+  the Brier score; a second table adds "no wiring fault" claims of satisfactory results;
+* median diagnosis time for 10, 20 and 40 ring outlets (typical-site rings), each with
+  ``os.getloadavg()`` beside it.
 
-Run: ``.venv/bin/python bench/diagnosis.py [--cases N] [--healthy N] [--seed S]``.
+Run: ``.venv/bin/python bench/diagnosis.py [--quick] [--n N] [--healthy N] [--seed S]
+[--conditions clean,typical,...] [--show CODE|healthy|setup] [--list]``.
 """
 
 from __future__ import annotations
 
 import argparse
 import math
+import os
 import statistics
 import sys
 import time
@@ -31,145 +41,230 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+from diag_conditions import BY_KEY, CONDITIONS, Condition  # noqa: E402
+from diag_scoring import calibration, hand_rule, score  # noqa: E402
 
 from ringmath.diagnose import diagnose  # noqa: E402
 from ringmath.simulate import FAULT_CODES, simulate  # noqa: E402
 
-FAULTS = set(FAULT_CODES)
+
+def load() -> str:
+    one, five, fifteen = os.getloadavg()
+    return f"load {one:.2f} {five:.2f} {fifteen:.2f}"
 
 
-def hand_rule(record: dict) -> bool:
-    """True when the common hand rule flags the ring (0.05 Ω tolerances, any OL)."""
-    e = record["end_to_end"]
-    vals = [e["r1"], e["rn"], e["r2"]]
-    if any(v == "OL" for v in vals):
-        return True
-    r1, rn, r2 = vals
-    if abs(r1 - rn) > 0.05:
-        return True
-    ln_exp, le_exp = (r1 + rn) / 4, (r1 + r2) / 4
-    for o in record["outlets"]:
-        if o["ln"] == "OL" or o["le"] == "OL":
-            return True
-        if o["spur_from"] is None and (abs(o["ln"] - ln_exp) > 0.05
-                                       or abs(o["le"] - le_exp) > 0.05):
-            return True
-    return False
+def pct(rows: list[dict], key: str) -> str:
+    return f"{100 * sum(r[key] for r in rows) / len(rows):5.1f} %" if rows else "   n/a "
 
 
-def _fault_findings(result: dict) -> list[dict]:
-    return [f for f in result["findings"] if f["severity"] == "fault" and f["code"] in FAULTS]
+def _judged_wrong(row: dict, show: str) -> bool:
+    if show == "healthy":
+        return not row["faulty"] and not row["setup"] and row["flagged"]
+    if show == "setup":
+        return row["setup"] and not (row["named"] if not row["faulty"] else row["right"])
+    return row["code"] == show and not row["right"]
 
 
-def _matches(f: dict, truth) -> bool:
-    if f["code"] != truth.code:
-        return False
-    if truth.code in ("open_conductor", "high_resistance_joint"):
-        return f["conductor"] == truth.conductor
-    if truth.code == "wrong_cross_connection":
-        return f["step"] == truth.step
-    return True
+def _show(cond: Condition, truth, result: dict) -> None:
+    faults = [f"{f.code}{'/' + (f.conductor or f.step) if f.conductor or f.step else ''}"
+              f" {list(f.outlets)}" for f in truth.faults] or ["sound"]
+    said = [(f["code"], f["severity"], f["confidence"], f["outlets"])
+            for f in result["findings"][:3]]
+    labels = truth.nuisance.labels() if truth.nuisance else ()
+    print(f"    [{cond.key}] truth {'; '.join(faults)} (signal {truth.signal_ohm:.3f} Ω;"
+          f" {', '.join(labels) or 'clean'}) -> {result['verdict']}: {said}")
 
 
-def _located(f: dict, truth) -> bool:
-    got, want = set(f["outlets"]), set(truth.outlets)
-    if not got:
-        return False
-    if truth.code == "interconnection":
-        return len(got ^ want) <= 1
-    if truth.code == "open_conductor":
-        return bool(got & want) and len(got) <= 2
-    if truth.code == "high_resistance_joint":
-        return bool(got & want) and len(got) <= 2
-    return got == want
-
-
-def _optimistic(result: dict, truth) -> int:
-    bad = 0
-    for p in result["points"]:
-        true = truth.service_r1r2_ohm.get(p["id"])
-        if p["r1r2_ohm"] is not None and true is not None and math.isfinite(true):
-            bad += p["r1r2_ohm"] < true - 1e-9
-    return bad
-
-
-def run(cases: int, healthy: int, seed: int, show: str | None = None) -> None:
-    rng = np.random.default_rng(seed)
+def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: int,
+                  show: str | None = None) -> list[dict]:
     rows = []
-    optimistic = points = 0
-    for code in [None] * healthy + [c for c in FAULT_CODES for _ in range(cases)]:
-        record, truth = simulate(rng, code)
+    for code in [None] * healthy + [c for c in FAULT_CODES for _ in range(n)]:
+        also = None
+        if cond.pairs and code is not None:
+            others = [c for c in FAULT_CODES if c != code]
+            also = others[int(rng.integers(0, len(others)))]
+        record, truth = simulate(rng, code, also=also, nuisance=cond.draw(rng))
+        t0 = time.perf_counter()
         result = diagnose(record)
-        optimistic += _optimistic(result, truth)
-        points += len(result["points"])
-        faults = _fault_findings(result)
-        top = [f for f in faults if f["confidence"] is not None
-               and faults[0]["confidence"] - f["confidence"] < 0.05] or faults[:1]
-        match = next((f for f in faults if _matches(f, truth)), None) if code else None
-        if show and code == show and not any(_matches(f, truth) for f in top):
-            e = record["end_to_end"]
-            print(f"missed {code} {truth.conductor or truth.step or ''} at {truth.outlets}: "
-                  f"r1 {e['r1']} rn {e['rn']} r2 {e['r2']} -> "
-                  f"{[(f['code'], f['conductor'], f['confidence']) for f in faults[:3]]}")
-        if show and code == show and match and truth.locatable and not _located(match, truth):
-            print(f"misplaced {code}: true {sorted(truth.outlets)} given {sorted(match['outlets'])}"
-                  f" section {match['section']} order {list(truth.ring_order)}")
-        rows.append({
-            "code": code, "detected": bool(faults), "flagged": result["verdict"] != "satisfactory",
-            "right": bool(code) and any(_matches(f, truth) for f in top),
-            "locatable": truth.locatable, "located": bool(match) and _located(match, truth),
-            "placed": bool(match) and bool(match["outlets"]),
-            "hand": hand_rule(record),
-        })
+        row = score(result, truth, record, hand_rule(record))
+        row["ms"] = 1000 * (time.perf_counter() - t0)
+        rows.append(row)
+        if show and _judged_wrong(row, show):
+            _show(cond, truth, result)
+    return rows
 
-    def pct(num, den):
-        return f"{100 * num / den:5.1f} %" if den else "   n/a"
 
-    print(f"seed {seed}: {healthy} healthy rings, {cases} per fault class\n")
-    print(f"{'class':24} {'n':>4} {'detected':>9} {'right':>8} {'located':>9} {'hand rule':>10}"
-          f" {'placed':>8} {'placed right':>13}")
-    for code in FAULT_CODES:
-        r = [x for x in rows if x["code"] == code]
+def print_condition(cond: Condition, rows: list[dict], seconds: float) -> dict:
+    sound = [r for r in rows if not r["faulty"] and not r["setup"]]
+    setup = [r for r in rows if not r["faulty"] and r["setup"]]
+    faulty = [r for r in rows if r["faulty"]]
+    visible = [r for r in faulty if r["visible"]]
+    print(f"\n== {cond.key}: {cond.title}   ({len(rows)} cases, {seconds:.0f} s, {load()})")
+    if sound:
+        print(f"  healthy rings ({len(sound)}): false alarms {pct(sound, 'flagged')}"
+              f" (hand rule {pct(sound, 'hand')}); wiring fault named {pct(sound, 'wiring_call')}"
+              f", at >= 80 % {pct(sound, 'wiring_call_80')}; retest"
+              f" {100 * sum(r['verdict'] == 'retest' for r in sound) / len(sound):5.1f} %")
+    if setup:
+        print(f"  healthy rings with a set-up error ({len(setup)}): named {pct(setup, 'named')};"
+              f" wiring fault named {pct(setup, 'wiring_call')}, at >= 80 %"
+              f" {pct(setup, 'wiring_call_80')} (hand rule flags {pct(setup, 'hand')})")
+    worn = [r for r in rows if r["worn"]]
+    if worn:
+        print(f"  worn sockets named at the right outlets {pct(worn, 'worn_placed')}")
+    metal = [r for r in rows if r["metallic"]]
+    if metal:
+        print(f"  metallic cpc named (parallel path / metallic code)"
+              f" {pct(metal, 'metallic_named')}")
+    print(f"  {'class':24} {'n':>4} {'detected':>9} {'right':>8} {'all right':>9} {'located':>9}"
+          f" {'hand rule':>9} | {'above limit':>11} {'detected':>9} {'right':>8}")
+    for code in (*FAULT_CODES, None):
+        r = [x for x in faulty if code is None or x["code"] == code]
+        v = [x for x in r if x["visible"]]
         loc = [x for x in r if x["locatable"]]
-        placed = [x for x in r if x["placed"]]
-        print(f"{code:24} {len(r):4} {pct(sum(x['detected'] for x in r), len(r)):>9} "
-              f"{pct(sum(x['right'] for x in r), len(r)):>8} "
-              f"{pct(sum(x['located'] for x in loc), len(loc)):>9} "
-              f"{pct(sum(x['hand'] for x in r), len(r)):>10} "
-              f"{pct(sum(x['placed'] for x in r), len(r)):>8} "
-              f"{pct(sum(x['located'] for x in placed), len(placed)):>13}")
-    faulty = [x for x in rows if x["code"]]
-    loc = [x for x in faulty if x["locatable"]]
-    well = [x for x in rows if x["code"] is None]
-    detected = pct(sum(x["detected"] for x in faulty), len(faulty))
-    print(f"{'all faults':24} {len(faulty):4} {detected:>9} "
-          f"{pct(sum(x['right'] for x in faulty), len(faulty)):>8} "
-          f"{pct(sum(x['located'] for x in loc), len(loc)):>9} "
-          f"{pct(sum(x['hand'] for x in faulty), len(faulty)):>10}")
-    model_fa = pct(sum(x["flagged"] for x in well), len(well))
-    hand_fa = pct(sum(x["hand"] for x in well), len(well))
-    print(f"\nfalse alarms on healthy rings: model {model_fa}, hand rule {hand_fa}")
-    print(f"points with an optimistic R1+R2: {optimistic} of {points}")
+        print(f"  {code or 'all faults':24} {len(r):4} {pct(r, 'flagged'):>9} {pct(r, 'right'):>8}"
+              f" {pct(r, 'right_all'):>9} {pct(loc, 'located'):>9} {pct(r, 'hand'):>9} |"
+              f" {len(v):11} {pct(v, 'flagged'):>9} {pct(v, 'right'):>8}")
+    claims = [r["claim"] for r in rows if r["claim"] and r["claim"][1] is not None]
+    table, brier = calibration(claims)
+    cells = "  ".join(f"{int(100 * lo)}-{min(int(100 * hi), 100)}: {obs * 100:3.0f}%/{cnt}"
+                      for lo, hi, cnt, _m, obs in table if cnt)
+    print(f"  calibration (bin: observed/count) {cells or 'no claims'};"
+          f" Brier {'n/a' if brier is None else f'{brier:.3f}'};"
+          f" median {statistics.median(r['ms'] for r in rows):.0f} ms per diagnosis")
 
-    print("\nmedian diagnosis time (healthy rings, 15 each):")
+    def frac(rs, key):
+        return sum(x[key] for x in rs) / len(rs) if rs else math.nan
+
+    return {"key": cond.key, "fa": frac(sound, "flagged"), "w80": frac(sound + setup,
+            "wiring_call_80"), "det": frac(faulty, "flagged"), "right": frac(faulty, "right"),
+            "vdet": frac(visible, "flagged"), "vright": frac(visible, "right"),
+            "named": frac(setup, "named"), "brier": brier, "hand_fa": frac(sound, "hand"),
+            "hand_det": frac(faulty, "hand")}
+
+
+def print_summary(summary: list[dict], rows: list[dict]) -> None:
+    print(f"\n== summary ({load()})")
+    heads = ("condition", "false al.", "wiring>=80", "detected", "right", "det>lim",
+             "right>lim", "setup named", "Brier", "hand FA", "hand det")
+    print(f"  {heads[0]:20}" + "".join(f"{h:>12}" for h in heads[1:]))
+    for s in summary:
+        vals = [s[k] for k in ("fa", "w80", "det", "right", "vdet", "vright", "named")]
+        cells = "".join("         n/a" if math.isnan(v) else f"{100 * v:10.1f} %" for v in vals)
+        brier = "         n/a" if s["brier"] is None else f"{s['brier']:12.3f}"
+        hands = "".join("         n/a" if math.isnan(v) else f"{100 * v:10.1f} %"
+                        for v in (s["hand_fa"], s["hand_det"]))
+        print(f"  {s['key']:20}{cells}{brier}{hands}")
+    for title, claims in (
+            ("leading finding", [r["claim"] for r in rows if r["claim"] and r["claim"][1]
+                                 is not None]),
+            ("leading finding or 'no wiring fault'",
+             [r["claim"] for r in rows if r["claim"] and r["claim"][1] is not None]
+             + [(r["sound"], not r["faulty"]) for r in rows if r["sound"] is not None])):
+        table, brier = calibration(claims)
+        unscored = sum(1 for r in rows if r["claim"] and r["claim"][1] is None)
+        certain = sum(1 for c, _ok in claims if c >= 0.995)
+        print(f"\n  calibration, all conditions, {title} ({len(claims)} claims,"
+              f" {unscored} unscored codes, {certain} stated at 100 %);"
+              f" Brier {'n/a' if brier is None else f'{brier:.3f}'}")
+        print(f"  {'stated':>10} {'count':>7} {'mean stated':>12} {'observed':>9}")
+        for lo, hi, cnt, mean, obs in table:
+            label = f"{int(100 * lo)}-{min(int(100 * hi), 100)} %"
+            print(f"  {label:>10} {cnt:7}" + ("" if not cnt else
+                                              f" {100 * mean:10.1f} % {100 * obs:7.1f} %"))
+
+
+def print_targets(summary: list[dict], rows: list[dict], ms20: float) -> None:
+    """The targets of the diagnosis work, each with this run's figure and met / not met."""
+    by = {s["key"]: s for s in summary}
+    checks = []
+    if "typical" in by:
+        t = by["typical"]
+        checks += [("typical site: false alarms <= 2 %", t["fa"], t["fa"] <= 0.02),
+                   ("typical site: healthy called a wiring fault at >= 80 %: none", t["w80"],
+                    t["w80"] == 0),
+                   ("typical site: detected >= 97 % above the limit", t["vdet"],
+                    t["vdet"] >= 0.97),
+                   ("typical site: right class >= 90 % above the limit", t["vright"],
+                    t["vright"] >= 0.90)]
+    if "clean" in by:
+        c = by["clean"]
+        checks += [("clean meter: detected >= 99 %", c["det"], c["det"] >= 0.99),
+                   ("clean meter: right class >= 98 %", c["right"], c["right"] >= 0.98),
+                   ("clean meter: no false alarm", c["fa"], c["fa"] == 0)]
+    setup = [r for r in rows if r["setup"] and not r["faulty"]]
+    if setup:
+        named = sum(r["named"] for r in setup) / len(setup)
+        checks.append((f"set-up errors named as such >= 90 % ({len(setup)} healthy rings)",
+                       named, named >= 0.90))
+    claims = [r["claim"] for r in rows if r["claim"] and r["claim"][1] is not None]
+    table, _ = calibration(claims)
+    full = [(mean, obs) for _lo, _hi, cnt, mean, obs in table if cnt >= 20]
+    worst = max((abs(m - o) for m, o in full), default=0.0)
+    checks.append(("calibration: every bin of >= 20 within 10 points (worst gap)", worst,
+                   worst <= 0.10))
+    print(f"\n== targets ({load()})")
+    for text, value, ok in checks:
+        shown = "n/a" if value is None or math.isnan(value) else f"{100 * value:.1f} %"
+        print(f"  {'met    ' if ok else 'NOT MET'} {text}: {shown}")
+    print(f"  {'met    ' if ms20 <= 150 else 'NOT MET'} 20-outlet diagnosis <= 150 ms median:"
+          f" {ms20:.0f} ms ({load()}; under load this overstates the time)")
+
+
+def timing(rng: np.random.Generator, reps: int) -> float:
+    """Print the median times; return the 20-outlet one in ms."""
+    print("\n== median diagnosis time (typical-site healthy rings)")
+    out = math.nan
     for n in (10, 20, 40):
         times = []
-        for _ in range(15):
-            record, _truth = simulate(rng, None, n_ring=n)
+        for _ in range(reps):
+            record, _truth = simulate(rng, None, n_ring=n, nuisance=BY_KEY["typical"].draw(rng))
             t0 = time.perf_counter()
             diagnose(record)
             times.append(time.perf_counter() - t0)
-        print(f"  {n:2} ring outlets: {1000 * statistics.median(times):6.1f} ms")
+        print(f"  {n:2} ring outlets: {1000 * statistics.median(times):7.1f} ms"
+              f" (of {reps}; {load()})")
+        if n == 20:
+            out = 1000 * statistics.median(times)
+    return out
 
 
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--cases", type=int, default=30)
-    parser.add_argument("--healthy", type=int, default=90)
     parser.add_argument("--seed", type=int, default=2026)
-    parser.add_argument("--show", metavar="CODE", help="print the cases of CODE not classed right")
+    parser.add_argument("--n", type=int, default=None, help="cases per fault class (30)")
+    parser.add_argument("--healthy", type=int, default=None, help="healthy rings (4 x n)")
+    parser.add_argument("--conditions", default="", help="comma-separated condition keys")
+    parser.add_argument("--quick", action="store_true", help="a few minutes on two cores")
+    parser.add_argument("--list", action="store_true", help="list the conditions and stop")
+    parser.add_argument("--show", metavar="WHAT", help="print the cases judged wrong: a fault"
+                        " code, 'healthy' (false alarms) or 'setup' (set-up errors not named)")
     args = parser.parse_args()
-    run(args.cases, args.healthy, args.seed, args.show)
+    if args.list:
+        for c in CONDITIONS:
+            print(f"{c.key:20} {c.title}")
+        return
+    n = args.n or (4 if args.quick else 30)
+    healthy = args.healthy if args.healthy is not None else 4 * n
+    keys = [k.strip() for k in args.conditions.split(",") if k.strip()] or [
+        c.key for c in CONDITIONS]
+    unknown = [k for k in keys if k not in BY_KEY]
+    if unknown:
+        parser.error(f"--conditions: unknown {', '.join(unknown)} (see --list)")
+    print(f"seed {args.seed}: {healthy} healthy rings and {n} per fault class per condition;"
+          f" {os.cpu_count()} cores, {load()}")
+    summary, every = [], []
+    for key in keys:
+        rng = np.random.default_rng([args.seed, list(BY_KEY).index(key)])
+        t0 = time.perf_counter()
+        rows = run_condition(BY_KEY[key], rng, n, healthy, args.show)
+        summary.append(print_condition(BY_KEY[key], rows, time.perf_counter() - t0))
+        every.extend(rows)
+    print_summary(summary, every)
+    ms20 = timing(np.random.default_rng([args.seed, 999]), 5 if args.quick else 15)
+    print_targets(summary, every, ms20)
 
 
 if __name__ == "__main__":

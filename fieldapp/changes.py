@@ -9,6 +9,7 @@ not applied again.
 from __future__ import annotations
 
 import datetime as dt
+import logging
 import math
 import re
 from dataclasses import dataclass
@@ -16,6 +17,7 @@ from dataclasses import dataclass
 from sqlalchemy import func, select
 from sqlalchemy.exc import IntegrityError
 
+from fieldapp import limits
 from fieldapp.extensions import db
 from fieldapp.models import ChangeLog, Circuit, Job, Outlet, utcnow
 from ringmath import parse_reading
@@ -24,13 +26,25 @@ from ringmath import parse_reading
 CIRCUIT_READINGS = ("r1", "rn", "r2")
 OUTLET_READINGS = ("ln", "le")
 READING_FIELDS = CIRCUIT_READINGS + OUTLET_READINGS
+#: Outlet readings of the live tests step: measured Zs and a re-measure at the terminals.
+LIVE_OUTLET_READINGS = ("zs_measured", "ln_terminals", "le_terminals")
 #: Job statuses in which readings and details may still change.
 EDITABLE_STATUSES = ("in_progress", "returned")
 CLIENT_ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_-]{7,63}$")
 
 
+log_ = logging.getLogger(__name__)
+
+
 class Refused(Exception):
-    """A write that the current state does not allow; the message is meant for the user."""
+    """A write that the current state does not allow; the message is meant for the user.
+    Every refusal is logged with the job and circuit it concerns."""
+
+    def __init__(self, message: str, *, job_id: int | None = None,
+                 circuit_id: int | None = None):
+        super().__init__(message)
+        self.job_id, self.circuit_id = job_id, circuit_id
+        log_.info("refused write (job %s, circuit %s): %s", job_id, circuit_id, message)
 
 
 @dataclass(frozen=True)
@@ -95,7 +109,8 @@ def reading_text(value: float | None) -> str | None:
 
 #: Job fields that submitting, reviewing and reopening change: writable on a locked job.
 REVIEW_FIELDS = ("status", "submitted_at", "reviewed_by_id", "reviewed_at", "review_comment",
-                 "approved_by_id", "approved_at")
+                 "approved_by_id", "approved_at", "submit_reason", "approve_reason",
+                 "submit_problems", "approve_problems")
 
 
 def _job_of(obj) -> Job | None:
@@ -117,19 +132,37 @@ def check_writable(obj, field: str) -> None:
     if job is None or (obj is job and field in REVIEW_FIELDS):
         return
     if job.id not in db.session.info.get(NEW_JOBS, ()):
-        check_editable(job)
+        check_editable(job, _circuit_id(obj))
 
 
-def log(obj, field: str, old, new, actor: Actor, client_id: str | None = None) -> ChangeLog:
-    """Append one ChangeLog row for obj.field (old -> new); Refused on a locked job."""
+def log(obj, field: str, old, new, actor: Actor, client_id: str | None = None,
+        taken_at: dt.datetime | None = None) -> ChangeLog:
+    """Append one ChangeLog row for obj.field (old -> new); Refused on a locked job.
+    taken_at: when a reading queued on the phone was taken (else it was taken as it arrived)."""
     check_writable(obj, field)
     row = ChangeLog(
         at=utcnow(), user_id=actor.user_id, device=(actor.device or "")[:200],
         entity=entity_name(obj), entity_id=obj.id, circuit_id=_circuit_id(obj), field=field,
         old_value=as_text(old), new_value=as_text(new), client_id=client_id,
+        taken_at=taken_time(taken_at),
     )
     db.session.add(row)
     return row
+
+
+def taken_time(value) -> dt.datetime | None:
+    """A taken-at time (datetime or ISO text, with or without a zone) as naive UTC; None stays
+    None; ValueError for text that is not an ISO time."""
+    if value in (None, ""):
+        return None
+    if isinstance(value, str):
+        try:
+            value = dt.datetime.fromisoformat(value.replace("Z", "+00:00"))
+        except ValueError:
+            raise ValueError(f"taken_at: {value!r} is not an ISO date and time") from None
+    if value.tzinfo is not None:
+        value = value.astimezone(dt.UTC).replace(tzinfo=None)
+    return value
 
 
 def update(obj, values: dict, actor: Actor) -> list[str]:
@@ -178,18 +211,19 @@ def check_client_id(client_id: str | None) -> str | None:
     return client_id
 
 
-def check_editable(job: Job) -> None:
+def check_editable(job: Job, circuit_id: int | None = None) -> None:
     """Refused unless the job is still being worked on."""
     if job.status not in EDITABLE_STATUSES:
         raise Refused(f"Job {job.reference} is {job.status.replace('_', ' ')}: "
-                      "it can no longer be changed.")
+                      "it can no longer be changed.", job_id=job.id, circuit_id=circuit_id)
 
 
 def check_ready_for_readings(circuit: Circuit) -> None:
     """Refused until the job is editable and the safety checks are ticked."""
-    check_editable(circuit.job)
+    check_editable(circuit.job, circuit.id)
     if not safety_confirmed(circuit):
-        raise Refused("Confirm safe isolation first: isolated, locked off and proved dead.")
+        raise Refused("Confirm safe isolation first: isolated, locked off and proved dead.",
+                      job_id=circuit.job_id, circuit_id=circuit.id)
 
 
 def safety_confirmed(circuit: Circuit) -> bool:
@@ -198,7 +232,7 @@ def safety_confirmed(circuit: Circuit) -> bool:
 
 
 def set_reading(circuit: Circuit, field: str, raw, actor: Actor, *, outlet: Outlet | None = None,
-                client_id: str | None = None) -> ReadingWrite:
+                client_id: str | None = None, taken_at=None) -> ReadingWrite:
     """Store one reading (raw as typed: "0.52", "0,52", "OL", a number, or None to clear).
 
     ValueError (nothing changed) for a bad value; a known client id is a no-op duplicate.
@@ -206,6 +240,7 @@ def set_reading(circuit: Circuit, field: str, raw, actor: Actor, *, outlet: Outl
     replay of the same id can never undo a later correction.
     """
     client_id = check_client_id(client_id)
+    taken_at = taken_time(taken_at)
     target = _reading_target(circuit, field, outlet)
     path = field if outlet is None else f"{outlet.key}.{field}"
     new = reading_text(parse_reading(raw, path))
@@ -216,7 +251,7 @@ def set_reading(circuit: Circuit, field: str, raw, actor: Actor, *, outlet: Outl
     if old == new and client_id is None:
         return ReadingWrite(field, old, new)
     setattr(target, field, new)
-    log(target, field, old, new, actor, client_id)
+    log(target, field, old, new, actor, client_id, taken_at)
     try:
         db.session.flush()
     except IntegrityError:  # the same id arrived twice at once: the other one won
@@ -233,11 +268,12 @@ def _reading_target(circuit: Circuit, field: str, outlet: Outlet | None):
         if outlet is not None:
             raise ValueError(f"{field}: an end-to-end reading belongs to the circuit")
         return circuit
-    if field in OUTLET_READINGS:
+    if field in OUTLET_READINGS + LIVE_OUTLET_READINGS:
         if outlet is None or outlet.circuit_id != circuit.id or outlet.deleted_at is not None:
             raise ValueError(f"{field}: needs an outlet of this circuit")
         return outlet
-    raise ValueError(f"step: {field!r} is not one of {', '.join(READING_FIELDS)}")
+    known = READING_FIELDS + LIVE_OUTLET_READINGS
+    raise ValueError(f"step: {field!r} is not one of {', '.join(known)}")
 
 
 def live_outlets(circuit: Circuit) -> list[Outlet]:
@@ -269,6 +305,11 @@ def add_outlet(circuit: Circuit, values: dict, actor: Actor,
     if earlier is not None:
         return db.session.get(Outlet, earlier.entity_id)
     _check_spur_source(circuit, values.get("spur_from_key"), None)
+    if len(live_outlets(circuit)) >= limits.MAX_OUTLETS_PER_CIRCUIT or sum(
+            len(live_outlets(c)) for c in circuit.job.circuits) >= limits.MAX_OUTLETS_PER_JOB:
+        raise Refused(f"A circuit holds at most {limits.MAX_OUTLETS_PER_CIRCUIT} outlets and a "
+                      f"job {limits.MAX_OUTLETS_PER_JOB}.",
+                      job_id=circuit.job_id, circuit_id=circuit.id)
     last = db.session.scalar(
         select(func.max(Outlet.position)).where(Outlet.circuit_id == circuit.id))
     fields = {"circuit_id": circuit.id, "position": (last or 0) + 1,
@@ -281,7 +322,7 @@ def add_outlet(circuit: Circuit, values: dict, actor: Actor,
 
 def edit_outlet(outlet: Outlet, values: dict, actor: Actor) -> list[str]:
     """Change an outlet's details (not its readings: use set_reading)."""
-    if set(values) & set(OUTLET_READINGS):
+    if set(values) & set(OUTLET_READINGS + LIVE_OUTLET_READINGS):
         raise ValueError("readings change through set_reading")
     _check_spur_source(outlet.circuit, values.get("spur_from_key"), outlet)
     return update(outlet, values, actor)
@@ -307,7 +348,7 @@ def delete_outlet(outlet: Outlet, actor: Actor) -> None:
     fed = [o.key for o in live_outlets(outlet.circuit) if o.spur_from_key == outlet.key]
     if fed:
         raise Refused(f"Outlet {outlet.key} feeds {', '.join(fed)}: "
-                      "delete or move those spurs first.")
+                      "delete or move those spurs first.", circuit_id=outlet.circuit_id)
     update(outlet, {"deleted_at": utcnow()}, actor)
 
 

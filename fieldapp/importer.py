@@ -12,8 +12,9 @@ from sqlalchemy import select
 
 from fieldapp import changes
 from fieldapp.extensions import db
-from fieldapp.models import Circuit, Job, utcnow
-from ringmath import parse_document
+from fieldapp.live.values import live_circuit_fields
+from fieldapp.models import Circuit, Job, Outlet, utcnow
+from ringmath import parse_document, parse_reading
 
 
 def _split_reference(reference: str) -> tuple[str, str]:
@@ -38,6 +39,7 @@ def circuit_fields(block: dict) -> dict:
         "ze_source": block.get("ze_source") or "measured",
         "earthing": block.get("earthing") or None,
         "cable_length_m": block.get("cable_length_m"),
+        **live_circuit_fields(block),
     }
 
 
@@ -46,29 +48,55 @@ def _outlet_fields(doc: dict) -> dict:
         "key": str(doc["id"]), "label": doc.get("label") or "",
         "kind": doc.get("kind") or "twin_socket", "spur_from_key": doc.get("spur_from") or None,
         "fuse_a": doc.get("fuse_a"), "spur_csa_mm2": doc.get("spur_csa_mm2"),
-        "spur_cpc_csa_mm2": doc.get("spur_cpc_csa_mm2"),
+        "spur_cpc_csa_mm2": doc.get("spur_cpc_csa_mm2"), "taken_at": doc.get("taken_at") or None,
     }
 
 
+def _create_all(model, rows: list[dict], actor: changes.Actor) -> list:
+    """Insert many rows with one flush, each logged as changes.create logs one."""
+    objs = [model(**values) for values in rows]
+    db.session.add_all(objs)
+    db.session.flush()
+    for obj, values in zip(objs, rows, strict=True):
+        changes.log(obj, "created", None, getattr(obj, "key", None) or obj.id, actor)
+        for name, value in values.items():
+            if value is not None and value != "":
+                changes.log(obj, name, None, value, actor)
+    return objs
+
+
+def _readings(doc: dict, names: tuple[str, ...], path: str) -> dict:
+    """Stored text of the readings present ("0.52", "OL"), parsed as set_reading does."""
+    out = {}
+    for name in names:
+        text = changes.reading_text(parse_reading(doc.get(name), f"{path}.{name}"))
+        if text is not None:
+            out[name] = text
+    return out
+
+
 def import_circuit(job: Job, record: dict, actor: changes.Actor, position: int) -> Circuit:
-    """One circuit record into ``job``; readings through set_reading (logged).
+    """One circuit record into ``job``, every value logged as a change from nothing.
 
     The safety checks are left unticked: an import confirms nothing about isolation on site.
     The circuit is marked imported (who, when), so its readings show as taken elsewhere.
+    Outlets are written with one flush per circuit (the document was checked whole first:
+    spur order and topology), so a large job holds the database's write lock briefly.
     """
     fields = circuit_fields(record["circuit"])
     fields.update({"job_id": job.id, "position": position, "current_step": "safety",
                    "imported_by_id": actor.user_id, "imported_at": utcnow()})
+    fields.update(_readings(record.get("end_to_end") or {}, changes.CIRCUIT_READINGS,
+                            "end_to_end"))
     circuit = changes.create(Circuit, fields, actor)
-    e2e = record.get("end_to_end") or {}
-    for name in ("r1", "rn", "r2"):
-        if e2e.get(name) is not None:
-            changes.set_reading(circuit, name, e2e[name], actor)
-    for doc in record.get("outlets") or ():
-        outlet = changes.add_outlet(circuit, _outlet_fields(doc), actor)
-        for name in ("ln", "le"):
-            if doc.get(name) is not None:
-                changes.set_reading(circuit, name, doc[name], actor, outlet=outlet)
+    rows = []
+    for n, doc in enumerate(record.get("outlets") or (), start=1):
+        row = {"circuit_id": circuit.id, "position": n, **_outlet_fields(doc)}
+        row.update(_readings(doc, changes.OUTLET_READINGS + changes.LIVE_OUTLET_READINGS,
+                             f"outlets[{n - 1}]"))
+        rows.append(row)
+    if rows:
+        _create_all(Outlet, rows, actor)
     return circuit
 
 

@@ -81,11 +81,12 @@ TERMS = {
 }
 
 
-def ohm(value, places: int = 2) -> str:
+def ohm(value, places: int = 2, unit: bool = True) -> str:
     """A reading or resistance for display: "0.26 Ω", "OL" or "—" (nothing yet).
 
     Takes a number, the stored text ("0.26", "OL"), ringmath's float('inf') for OL, or None.
-    Text that is not a number is shown as it is."""
+    Text that is not a number is shown as it is; ``unit=False`` leaves out " Ω" (a table
+    whose caption says ohms)."""
     if value is None or value == "":
         return "—"
     if isinstance(value, str):
@@ -99,7 +100,7 @@ def ohm(value, places: int = 2) -> str:
         return str(value)
     if math.isinf(value):
         return "OL"
-    return f"{value:.{places}f} Ω"
+    return f"{value:.{places}f} Ω" if unit else f"{value:.{places}f}"
 
 
 def kind_label(kind: str | None, short: bool = False) -> str:

@@ -9,6 +9,7 @@ app setting PASSWORD_HASH_METHOD (werkzeug method string) lets tests hash quickl
 from __future__ import annotations
 
 import argparse
+import io
 import json
 import secrets
 import sys
@@ -17,7 +18,7 @@ from pathlib import Path
 from sqlalchemy import func, select
 from werkzeug.security import generate_password_hash
 
-from fieldapp import changes, create_app, migrations
+from fieldapp import backup, changes, create_app, migrations
 from fieldapp.extensions import db
 from fieldapp.importer import import_document
 from fieldapp.models import ROLES, Job, User
@@ -75,7 +76,9 @@ def load_demo_jobs(directory: Path = DEMO_DIR, out=sys.stdout) -> list[Job]:
     return jobs
 
 
-def setup(app=None, out=sys.stdout) -> None:
+def setup(app=None, out=sys.stdout, logins_out=None) -> None:
+    """Migrate, seed the demo users and jobs, then print the logins (to ``logins_out`` when
+    given, so a caller can print them after everything else)."""
     app = app or create_app()
     with app.app_context():
         migrations.upgrade(db.engine)
@@ -87,16 +90,39 @@ def setup(app=None, out=sys.stdout) -> None:
         if jobs:
             print(f"loaded {len(jobs)} demo job(s): "
                   + ", ".join(j.reference for j in jobs), file=out)
-        if created:
-            print("demo logins (passwords shown this once; write them down):", file=out)
-            for user, password in created:
-                print(f"  {user.role:<11} user {user.username:<11} password {password}",
-                      file=out)
-        else:
-            print("logins:", file=out)
-            for user in db.session.scalars(select(User).order_by(User.id)):
-                print(f"  {user.role:<11} user {user.username}", file=out)
-            print("  (forgotten? python -m fieldapp.manage reset-password USER)", file=out)
+        print_logins(created, logins_out or out)
+
+
+def print_logins(created: list, out) -> None:
+    """The demo logins with their passwords (just created), else the user names."""
+    if created:
+        print("demo logins (passwords shown this once; write them down):", file=out)
+        for user, password in created:
+            print(f"  {user.role:<11} user {user.username:<11} password {password}", file=out)
+    else:
+        print("logins:", file=out)
+        for user in db.session.scalars(select(User).order_by(User.id)):
+            print(f"  {user.role:<11} user {user.username}", file=out)
+        print("  (forgotten? python -m fieldapp.manage reset-password USER)", file=out)
+
+
+def serve(host: str, port: int, app=None, out=sys.stdout, make_server=None) -> None:
+    """``make run``: set up, start the development server, and print the logins last, once
+    the server is listening, so no other output buries them."""
+    if make_server is None:
+        from werkzeug.serving import make_server
+    app = app or create_app()
+    logins = io.StringIO()
+    setup(app, out=out, logins_out=logins)
+    server = make_server(host, port, app, threaded=True)
+    print(f"serving on http://{host}:{port} (development server; Ctrl+C stops it)", file=out)
+    print(logins.getvalue(), end="", file=out, flush=True)
+    try:
+        server.serve_forever()
+    except KeyboardInterrupt:
+        pass
+    finally:
+        server.server_close()
 
 
 def reset_password(username: str, app=None, out=sys.stdout) -> int:
@@ -122,11 +148,49 @@ def main(argv=None) -> int:
     sub.add_parser("setup", help="create/upgrade the database, demo users and demo jobs")
     reset = sub.add_parser("reset-password", help="give a user a new random password")
     reset.add_argument("username")
+    run = sub.add_parser("run", help="setup, then serve; the logins are printed last")
+    run.add_argument("--host", default="127.0.0.1")
+    run.add_argument("--port", type=int, default=5000)
+    save = sub.add_parser("backup", help="write the whole database to FILE as JSON")
+    save.add_argument("file")
+    save.add_argument("--with-passwords", action="store_true",
+                      help="include the password hashes (keep that file safe)")
+    load = sub.add_parser("restore", help="load a backup FILE into an empty database")
+    load.add_argument("file")
     args = parser.parse_args(argv)
     if args.command == "setup":
         setup()
         return 0
+    if args.command == "run":
+        serve(args.host, args.port)
+        return 0
+    if args.command == "backup":
+        return backup_command(args.file, args.with_passwords)
+    if args.command == "restore":
+        return restore_command(args.file)
     return reset_password(args.username)
+
+
+def backup_command(path: str, with_passwords: bool = False, app=None, out=sys.stdout) -> int:
+    app = app or create_app()
+    with app.app_context():
+        doc = backup.backup(with_passwords)
+    Path(path).write_text(json.dumps(doc, indent=1, ensure_ascii=False) + "\n")
+    rows = sum(len(rows) for rows in doc["tables"].values())
+    print(f"backup of {rows} rows at revision {doc['revision']} written to {path}", file=out)
+    return 0
+
+
+def restore_command(path: str, app=None, out=sys.stdout) -> int:
+    app = app or create_app()
+    with app.app_context():
+        try:
+            restored = backup.restore(json.loads(Path(path).read_text()))
+        except (backup.BackupError, ValueError) as error:
+            print(f"restore refused: {error}", file=sys.stderr)
+            return 2
+    print("restored " + ", ".join(f"{n} {t}" for t, n in restored.items() if n), file=out)
+    return 0
 
 
 if __name__ == "__main__":

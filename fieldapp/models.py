@@ -68,6 +68,12 @@ class Job(db.Model):
     review_comment: Mapped[str | None] = mapped_column(Text)
     approved_by_id: Mapped[int | None] = mapped_column(ForeignKey("user.id"))
     approved_at: Mapped[dt.datetime | None]
+    #: The test instrument used, as the tester typed it.
+    instrument_model: Mapped[str | None] = mapped_column(String(80))
+    instrument_serial: Mapped[str | None] = mapped_column(String(60))
+    #: Why the job was submitted / approved although it had problems (fieldapp/review/gate.py).
+    submit_reason: Mapped[str | None] = mapped_column(Text)
+    approve_reason: Mapped[str | None] = mapped_column(Text)
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
     updated_at: Mapped[dt.datetime] = mapped_column(default=utcnow, onupdate=utcnow)
 
@@ -108,6 +114,16 @@ class Circuit(db.Model):
     rn: Mapped[str | None] = mapped_column(String(16))
     r2: Mapped[str | None] = mapped_column(String(16))
     current_step: Mapped[str] = mapped_column(String(10), default="safety")
+    # live tests and the rest of the schedule (migration 0005): readings stay text as recorded
+    cpc_kind: Mapped[str] = mapped_column(String(12), default="cable_core")
+    parallel_paths: Mapped[bool] = mapped_column(default=False)
+    pfc_ka: Mapped[float | None]
+    ir_test_v: Mapped[float | None]
+    ir_ln_mohm: Mapped[str | None] = mapped_column(String(16))  # "200", ">999" or NULL
+    ir_le_mohm: Mapped[str | None] = mapped_column(String(16))
+    ir_ne_mohm: Mapped[str | None] = mapped_column(String(16))
+    rcd_trip_ms: Mapped[float | None]
+    rcd_button_ok: Mapped[bool | None]
     #: Set when the circuit came from a file: who imported it and when; its readings were
     #: not taken in this app. imported_safety: the file's safety block as JSON text (what
     #: the file claims, never a confirmation made here).
@@ -139,6 +155,11 @@ class Outlet(db.Model):
     spur_cpc_csa_mm2: Mapped[float | None]
     ln: Mapped[str | None] = mapped_column(String(16))
     le: Mapped[str | None] = mapped_column(String(16))
+    # live tests (migration 0005): measured Zs and a re-measure at the terminals, as text
+    zs_measured: Mapped[str | None] = mapped_column(String(16))
+    taken_at: Mapped[str | None] = mapped_column(String(10))  # "front", "terminals" or NULL
+    ln_terminals: Mapped[str | None] = mapped_column(String(16))
+    le_terminals: Mapped[str | None] = mapped_column(String(16))
     deleted_at: Mapped[dt.datetime | None]
 
     circuit: Mapped[Circuit] = relationship(back_populates="outlets")
@@ -162,6 +183,8 @@ class ChangeLog(db.Model):
     new_value: Mapped[str | None] = mapped_column(Text)
     #: The idempotency key a client sent with the write; unique where present.
     client_id: Mapped[str | None] = mapped_column(String(64), unique=True)
+    #: When the reading was taken on the phone, when it was queued offline (UTC, naive).
+    taken_at: Mapped[dt.datetime | None]
 
     user: Mapped[User | None] = relationship()
 

@@ -82,23 +82,16 @@ def note_progress(circuit: Circuit, step: str, who: changes.Actor) -> None:
 
 
 def error_kind(error: ValueError) -> str:
-    """ringmath's kind of a parse error ("format", "range", ...). The core's RecordError carries
-    ``.kind``; for a plain ValueError the kind is read from its text, here and nowhere else."""
-    kind = getattr(error, "kind", None)
-    if kind:
-        return str(kind)
-    text = str(error)
-    if "below the lowest" in text or "above the highest" in text:
-        return "range"
-    return "format"
+    """ringmath's kind of a parse error ("format", "range", ...: ``RecordError.kind``)."""
+    return str(getattr(error, "kind", None) or "format")
 
 
 def reading_message(error: ValueError, raw=None) -> str:
     """A parse error in plain words for the person who typed the reading."""
     kind = error_kind(error)
     shown = f"“{str(raw).strip()}”" if raw not in (None, "") else "That"
-    number = _number(raw)
     if kind == "range":
+        number = _number(raw)
         if number is not None and number < 0:
             return "A resistance cannot be negative. Check the reading and the meter's leads."
         return (f"{shown} Ω is far above any ring reading. If the meter shows over-range, "
@@ -182,9 +175,9 @@ def save_reading(circuit: Circuit, field: str, raw, actor: changes.Actor,
     except changes.Refused as refused:
         log.info("reading refused on circuit %s (%s): %s", circuit.id, field, refused)
         raise
-    if field not in changes.READING_FIELDS:
+    if field not in changes.READING_FIELDS + changes.LIVE_OUTLET_READINGS:
         raise BadReading(f"Unknown reading {field!r}.", field="step", kind="choice")
-    if field in changes.OUTLET_READINGS and (outlet is None or outlet.circuit_id != circuit.id
+    if field not in changes.CIRCUIT_READINGS and (outlet is None or outlet.circuit_id != circuit.id
                                              or outlet.deleted_at is not None):
         raise BadReading("No such outlet on this circuit.", field="outlet", kind="missing")
     if raw is None or (isinstance(raw, str) and not raw.strip()):
@@ -208,6 +201,7 @@ def save_reading(circuit: Circuit, field: str, raw, actor: changes.Actor,
         field_name = "client_id" if str(error).startswith("client_id") else "value"
         raise BadReading(reading_message(error, raw) if field_name == "value" else str(error),
                          field=field_name, kind=error_kind(error)) from error
-    note_progress(circuit, step_of(field), actor)
+    if step_of(field) in STEPS:  # the live readings are not a step of the resume point
+        note_progress(circuit, step_of(field), actor)
     db.session.commit()
     return result

@@ -2,10 +2,14 @@
 
 from __future__ import annotations
 
+import logging
+
 from fieldapp.changes import live_outlets
 from fieldapp.diagnoses import diagnosis_for
 from fieldapp.models import Circuit, Job
 from ringmath import FORMAT
+
+log = logging.getLogger(__name__)
 
 
 def reading_value(text: str | None):
@@ -33,10 +37,26 @@ def job_block(job: Job) -> dict:
     }
 
 
+def ir_value(text: str | None):
+    """A stored insulation resistance ("200", ">999", None) in record form: float, ">999"
+    (the instrument showed "> value") or None."""
+    if text is None:
+        return None
+    return text if text.startswith(">") else float(text)
+
+
+def insulation_block(circuit: Circuit) -> dict | None:
+    """The insulation test in record form, or None when nothing of it is recorded."""
+    block = {"test_v": circuit.ir_test_v, "ln_mohm": ir_value(circuit.ir_ln_mohm),
+             "le_mohm": ir_value(circuit.ir_le_mohm), "ne_mohm": ir_value(circuit.ir_ne_mohm)}
+    return block if any(v is not None for v in block.values()) else None
+
+
 def circuit_block(circuit: Circuit) -> dict:
     rcd = None
     if circuit.rcd_rated_ma:
-        rcd = {"rated_ma": circuit.rcd_rated_ma, "type": circuit.rcd_type or None}
+        rcd = {"rated_ma": circuit.rcd_rated_ma, "type": circuit.rcd_type or None,
+               "trip_ms": circuit.rcd_trip_ms, "button_ok": circuit.rcd_button_ok}
     return {
         "reference": circuit_reference(circuit),
         "description": circuit.description,
@@ -49,6 +69,10 @@ def circuit_block(circuit: Circuit) -> dict:
         "ze_source": circuit.ze_source,
         "earthing": circuit.earthing or None,
         "cable_length_m": circuit.cable_length_m,
+        "cpc_kind": circuit.cpc_kind or "cable_core",
+        "parallel_paths": bool(circuit.parallel_paths),
+        "pfc_ka": circuit.pfc_ka,
+        "insulation": insulation_block(circuit),
     }
 
 
@@ -65,6 +89,9 @@ def circuit_record(circuit: Circuit, *, with_job: bool = True) -> dict:
             "fuse_a": o.fuse_a, "spur_csa_mm2": o.spur_csa_mm2,
             "spur_cpc_csa_mm2": o.spur_cpc_csa_mm2,
             "ln": reading_value(o.ln), "le": reading_value(o.le),
+            "zs_measured": reading_value(o.zs_measured), "taken_at": o.taken_at or None,
+            "ln_terminals": reading_value(o.ln_terminals),
+            "le_terminals": reading_value(o.le_terminals),
         }
         for o in live_outlets(circuit)
     ]
@@ -87,4 +114,8 @@ def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
     try:
         return diagnosis_for(record), None
     except ValueError as error:
+        log.info("diagnosis of circuit %s refused: %s", circuit.id, error)
         return None, f"The record cannot be diagnosed yet: {error}"
+    except Exception:  # one bad circuit must never take a page or the job list down
+        log.exception("diagnosis of circuit %s failed", circuit.id)
+        return None, "The diagnosis failed for this circuit; the readings are kept."

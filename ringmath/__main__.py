@@ -13,6 +13,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from typing import Any
 
 from ringmath.diagnose import diagnose
 from ringmath.record import RecordError, loads, parse_document
@@ -20,12 +21,12 @@ from ringmath.record import RecordError, loads, parse_document
 _RANK = {"satisfactory": 0, "incomplete": 1, "retest": 2, "investigate": 3}
 
 
-def diagnose_document(doc) -> dict:
+def diagnose_document(doc: object) -> dict[str, Any]:
     """The CLI's object for one document: the circuit's result, or for a job document with
     several circuits the worst verdict plus one result per circuit."""
     tests = parse_document(doc)
     results = [diagnose(t) for t in tests]
-    if len(results) == 1 and "circuits" not in doc:
+    if len(results) == 1 and not (isinstance(doc, dict) and "circuits" in doc):
         return results[0]
     worst = max(results, key=lambda r: _RANK[r["verdict"]])
     return {"verdict": worst["verdict"], "summary": worst["summary"],

@@ -1,14 +1,19 @@
 """Maximum earth fault loop impedance (Zs) for the circuit's protective device and for FCU fuses.
 
-Circuit-breakers (BS EN 60898) and RCBOs (BS EN 61009), curves B, C and D: the limit is
-computed the way BS 7671:2018 Table 41.3 is built,
+The figures are checked data (``ringmath.tables``, CSV files in ``ringmath/data``), each row
+with its edition, table, basis and where it was checked against a published copy:
 
-    Zs_tabulated = Cmin × U0 / Ia,   Cmin = 0.95, U0 = 230 V, Ia = 5, 10 or 20 × In (B, C, D),
+- Circuit-breakers (BS EN 60898, RCBOs to BS EN 61009, BS 3871 types B/C/D), 0.4 s, the way
+  BS 7671:2018 Table 41.3 is built: Zs = Cmin × U0 / Ia, Cmin = 0.95, U0 = 230 V,
+  Ia = 5, 10 or 20 × In (B, C, D), rounded to 0.01 Ω. BS 3871 types 1, 2, 3 are recognised
+  but their tripping multiples could not be checked, so no limit is given for them.
+- Fuses (BS 88-2, BS 88-3, BS 3036, BS 1361, BS 1362), 0.4 s, BS 7671:2018 Table 41.2 where
+  a published figure was found (see each row); the rest are recognised but refused.
 
-the current that trips the breaker instantaneously (well inside 0.4 s), rounded to 0.01 Ω.
-
-Fuses (BS 88-3, BS 3036, BS 1362): the 0.4 s values of BS 7671:2018 Table 41.2. These figures
-are quoted from memory and must be checked against the printed table before they are relied on.
+A device the tables do not list at all is a record error (``RecordError`` kind "choice",
+naming ``<path>.standard``, ``.curve`` or ``.rating_a``). A listed device whose figure could not
+be checked raises ``NoCheckedLimit`` from ``device_limit``: callers show "limit unknown", never a
+guessed figure.
 
 The limit for a *measured* or predicted-from-readings value, ``zs_max_ohm``, is 80 % of the
 tabulated maximum, rounded to 0.01 Ω: the common-practice rule of thumb of the IET On-Site
@@ -26,6 +31,7 @@ from dataclasses import dataclass
 
 from ringmath.record.model import Ocpd
 from ringmath.record.values import RecordError, show
+from ringmath.tables import BREAKERS, FUSES, LimitRow
 
 #: Minimum voltage factor and nominal line-to-earth voltage, BS 7671:2018 Appendix 3 / 411.4.
 CMIN = 0.95
@@ -33,30 +39,33 @@ U0_V = 230.0
 #: Instantaneous tripping current as a multiple of In (BS EN 60898 upper limits: B 5, C 10,
 #: D 20), as used for BS 7671:2018 Table 41.3.
 CURVE_MULTIPLE = {"B": 5, "C": 10, "D": 20}
-BREAKER_STANDARDS = {"BS EN 60898": "circuit-breaker", "BS EN 61009": "RCBO"}
-BREAKER_RATINGS_A = (6, 10, 13, 16, 20, 25, 32, 40, 45, 50)
+BREAKER_STANDARDS = {"BS EN 60898": "circuit-breaker", "BS EN 61009": "RCBO",
+                     "BS 3871": "circuit-breaker"}
+FUSE_NAMES = {
+    "BS 88-2": "general purpose (gG) fuse",
+    "BS 88-3": "cartridge fuse",
+    "BS 3036": "semi-enclosed (rewirable) fuse",
+    "BS 1361": "cartridge fuse",
+    "BS 1362": "cartridge fuse",
+}
+STANDARDS = (*BREAKER_STANDARDS, *FUSE_NAMES)
 #: Fraction of the tabulated maximum used as the limit for a measured value (common practice,
 #: IET On-Site Guide / Guidance Note 3).
 MEASURED_FRACTION = 0.8
 #: Touch voltage limit for RCD fault protection in TT systems, BS 7671:2018 411.5.3.
 TT_TOUCH_VOLTAGE_V = 50.0
 
-#: BS 7671:2018 Table 41.2, 0.4 s disconnection, Zs in ohms by fuse rating in amperes.
-#: Every value from memory: check against the printed table.
-FUSE_ZS_OHM: dict[str, dict[int, float]] = {
-    "BS 88-3": {5: 9.83, 16: 2.70, 20: 1.70, 32: 1.03, 45: 0.60},
-    "BS 3036": {5: 9.58, 15: 2.55, 20: 1.77, 30: 1.09},
-    "BS 1362": {3: 15.33, 13: 2.30},
-}
-FUSE_NAMES = {
-    "BS 88-3": "cartridge fuse",
-    "BS 3036": "semi-enclosed (rewirable) fuse",
-    "BS 1362": "cartridge fuse",
-}
-STANDARDS = (*BREAKER_STANDARDS, *FUSE_ZS_OHM)
-
 _MEASURED_NOTE = ("measured limit 80 % of tabulated (rule of thumb, IET On-Site Guide / "
                   "Guidance Note 3)")
+
+
+class NoCheckedLimit(ValueError):
+    """A recognised device whose Zs figure could not be checked against a published copy."""
+
+    def __init__(self, description: str, basis: str):
+        self.description = description
+        super().__init__(f"no checked Zs limit for a {description}: {basis}; use the printed "
+                         "BS 7671 table or the device maker's data")
 
 
 @dataclass(frozen=True)
@@ -83,6 +92,12 @@ def measured_limit_ohm(zs_tabulated_ohm: float) -> float:
     return round(MEASURED_FRACTION * zs_tabulated_ohm, 2)
 
 
+def breaker_zs_ohm(curve: str, rating_a: float) -> float:
+    """Cmin × U0 / (k × In) in ohms, rounded to 0.01 Ω, k = 5, 10, 20 for curves B, C, D
+    (BS 7671:2018 Table 41.3 basis)."""
+    return round(CMIN * U0_V / (CURVE_MULTIPLE[curve] * rating_a), 2)
+
+
 def _standard(text: str, path: str) -> str:
     norm = " ".join(str(text).upper().split())
     # Part numbers of the product standards: "BS EN 60898-1" is the same table.
@@ -93,7 +108,7 @@ def _standard(text: str, path: str) -> str:
                       f"{show(text)} is not one of {', '.join(STANDARDS)}")
 
 
-def _rating(rating_a: float, ratings, path: str, what: str) -> int:
+def _rating(rating_a: float, ratings: list[int], path: str, what: str) -> int:
     for r in ratings:
         if math.isclose(float(rating_a), r, abs_tol=1e-9):
             return r
@@ -102,65 +117,65 @@ def _rating(rating_a: float, ratings, path: str, what: str) -> int:
                       f"{rating_a:g} A is not a {what} rating in the table ({listed} A)")
 
 
+def _row(ocpd: Ocpd, path: str) -> tuple[str, LimitRow]:
+    """(description, table row) for the device; RecordError naming the field if not listed."""
+    standard = _standard(ocpd.standard, path)
+    curve = (ocpd.curve or "").upper()
+    if standard in BREAKER_STANDARDS:
+        curves = sorted({c for s, c, _ in BREAKERS if s == standard})
+        if curve not in curves:
+            raise RecordError(f"{path}.curve", "choice", f"{show(ocpd.curve)} is not one of "
+                              f"{', '.join(curves)} for a {standard} device")
+        ratings = sorted(r for s, c, r in BREAKERS if s == standard and c == curve)
+        rating = _rating(ocpd.rating_a, ratings, path, standard)
+        return (f"{rating} A type {curve} {BREAKER_STANDARDS[standard]} ({standard})",
+                BREAKERS[(standard, curve, rating)])
+    if curve:
+        raise RecordError(f"{path}.curve", "choice", f"a {standard} fuse has no tripping "
+                          f"curve (got {show(ocpd.curve)})")
+    ratings = sorted(r for s, r in FUSES if s == standard)
+    rating = _rating(ocpd.rating_a, ratings, path, standard)
+    return f"{rating} A {FUSE_NAMES[standard]} ({standard})", FUSES[(standard, rating)]
+
+
+def check_device(ocpd: Ocpd, path: str = "circuit.ocpd") -> None:
+    """RecordError naming the field unless the tables list this device (checked or not)."""
+    _row(ocpd, path)
+
+
+def _limit(description: str, row: LimitRow) -> DeviceLimit:
+    if not row.checked or row.zs_ohm is None:
+        raise NoCheckedLimit(description, row.basis)
+    return DeviceLimit(
+        description=description, standard=row.standard, curve=row.curve,
+        rating_a=float(row.rating_a), zs_tabulated_ohm=row.zs_ohm,
+        zs_max_ohm=measured_limit_ohm(row.zs_ohm),
+        source=f"{row.edition} {row.table}: {row.basis} (checked: {row.where_checked}); "
+               f"{_MEASURED_NOTE}",
+    )
+
+
 def device_limit(ocpd: Ocpd, path: str = "circuit.ocpd") -> DeviceLimit:
     """The Zs limits for the circuit's overcurrent protective device.
 
-    Breakers (BS EN 60898, BS EN 61009), curve B/C/D, 6–50 A: Zs = 0.95 × 230 V / (k × In),
-    k = 5, 10, 20 (BS 7671:2018 Table 41.3 basis), rounded to 0.01 Ω. Fuses BS 88-3, BS 3036,
-    BS 1362: BS 7671:2018 Table 41.2 (values from memory). ValueError naming
-    ``<path>.standard``, ``<path>.curve`` or ``<path>.rating_a`` for anything not tabulated.
+    RecordError naming ``<path>.standard``, ``<path>.curve`` or ``<path>.rating_a`` for a device
+    the tables do not list; NoCheckedLimit for a listed one whose figure is not checked.
     """
-    standard = _standard(ocpd.standard, path)
-    if standard in BREAKER_STANDARDS:
-        curve = (ocpd.curve or "").upper()
-        if curve not in CURVE_MULTIPLE:
-            raise RecordError(f"{path}.curve", "choice", f"{show(ocpd.curve)} is not one of "
-                              f"{', '.join(CURVE_MULTIPLE)} for a {standard} device")
-        rating = _rating(ocpd.rating_a, BREAKER_RATINGS_A, path, standard)
-        multiple = CURVE_MULTIPLE[curve]
-        return _overcurrent_limit(
-            f"{rating} A type {curve} {BREAKER_STANDARDS[standard]} ({standard})",
-            standard, curve, rating, round(CMIN * U0_V / (multiple * rating), 2),
-            f"BS 7671:2018 Table 41.3 basis: Zs = Cmin × U0 / Ia = 0.95 × 230 V / "
-            f"({multiple} × {rating} A)")
-    if ocpd.curve not in (None, ""):
-        raise RecordError(f"{path}.curve", "choice", f"a {standard} fuse has no tripping "
-                          f"curve (got {show(ocpd.curve)})")
-    return _fuse_limit(standard, ocpd.rating_a, path)
-
-
-def _fuse_limit(standard: str, rating_a: float, path: str) -> DeviceLimit:
-    table = FUSE_ZS_OHM[standard]
-    rating = _rating(rating_a, tuple(table), path, standard)
-    return _overcurrent_limit(
-        f"{rating} A {FUSE_NAMES[standard]} ({standard})", standard, None, rating, table[rating],
-        "BS 7671:2018 Table 41.2, 0.4 s (value from memory: check against the printed table)")
-
-
-def _overcurrent_limit(description: str, standard: str, curve: str | None, rating_a: int,
-                       tabulated_ohm: float, table_source: str) -> DeviceLimit:
-    """A DeviceLimit whose measured limit is 80 % of ``tabulated_ohm`` (ohms)."""
-    return DeviceLimit(
-        description=description, standard=standard, curve=curve, rating_a=float(rating_a),
-        zs_tabulated_ohm=tabulated_ohm, zs_max_ohm=measured_limit_ohm(tabulated_ohm),
-        source=f"{table_source}; {_MEASURED_NOTE}",
-    )
+    return _limit(*_row(ocpd, path))
 
 
 def fcu_limit(fuse_a: float) -> DeviceLimit:
     """The Zs limits beyond a fused connection unit with a BS 1362 fuse of ``fuse_a`` amperes.
 
-    Only 3 A (15.33 Ω) and 13 A (2.30 Ω) are tabulated (BS 7671:2018 Table 41.2, from memory);
-    other BS 1362 ratings (1, 2, 5, 7, 10 A) have no published figure we can cite, so they are
-    refused with a ValueError naming ``fuse_a`` (use the fuse maker's time-current data).
+    ValueError naming ``fuse_a`` for a rating BS 1362 does not have; NoCheckedLimit for one
+    with no checked figure (only 3 A and 13 A have one: see ``ringmath/data/zs_fuses.csv``).
     """
     if isinstance(fuse_a, bool) or not isinstance(fuse_a, int | float):
-        raise ValueError(f"fuse_a: expected a number of amperes, got {fuse_a!r}")
-    table = FUSE_ZS_OHM["BS 1362"]
-    if not any(math.isclose(float(fuse_a), r, abs_tol=1e-9) for r in table):
-        raise ValueError(f"fuse_a: no tabulated Zs for a {fuse_a:g} A BS 1362 fuse "
-                         f"(BS 7671 Table 41.2 lists {', '.join(str(r) for r in table)} A)")
-    return _fuse_limit("BS 1362", fuse_a, "fcu")
+        raise ValueError(f"fuse_a: expected a number of amperes, got {show(fuse_a)}")
+    try:
+        return device_limit(Ocpd("BS 1362", None, fuse_a), "fcu")
+    except RecordError as exc:
+        raise ValueError(f"fuse_a: {exc.detail}") from None
 
 
 def rcd_limit(rated_ma: float) -> DeviceLimit:
@@ -172,7 +187,7 @@ def rcd_limit(rated_ma: float) -> DeviceLimit:
     """
     if isinstance(rated_ma, bool) or not isinstance(rated_ma, int | float) or not (
             math.isfinite(rated_ma) and rated_ma > 0):
-        raise ValueError(f"circuit.rcd.rated_ma: {rated_ma!r} is not a positive current in mA")
+        raise ValueError(f"circuit.rcd.rated_ma: {show(rated_ma)} is not a positive current in mA")
     tabulated = round(TT_TOUCH_VOLTAGE_V / (rated_ma / 1000.0), 2)
     return DeviceLimit(
         description=f"{rated_ma:g} mA RCD (fault protection, TT)",

@@ -11,13 +11,14 @@ The result is plain JSON-able values; its shape is listed in DEVELOPERS.md.
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
-from ringmath import checks, messages, rules, zs
+from ringmath import checks, explain, messages, ranking, rules, setup_messages, zs
 from ringmath.findings import Finding
-from ringmath.fitting import Fit, fit_all, position_posterior
+from ringmath.fitting import Fit, position_posterior
 from ringmath.likelihood import Prepared, prepare, t_grid
-from ringmath.local import LocalFault, local_faults
 from ringmath.record import RingTest, format_reading, parse_record
 
 #: A fault position whose spread (ring fractions, over the uniform search grid) exceeds this
@@ -29,15 +30,16 @@ LOCATE_SD = {"interconnection": 0.12, "open_conductor": 0.11, "high_resistance_j
 POSITIONLESS = ("healthy", "wrong_cross_connection")
 #: Two combined explanations closer than this in score (nats) "fit about equally".
 LOOK_ALIKE_NATS = 2.0
-
-
-def _combine(prep: Prepared, fits: list[Fit], n: int) -> list[tuple[float, Fit, list]]:
-    """The best few whole-ring fits, each with the outlet faults that raise its score."""
-    out = []
-    for fit in fits[:3]:
-        extra = local_faults(prep, fit)
-        out.append((fit.score(n) + sum(lf.gain for lf in extra), fit, extra))
-    return sorted(out, key=lambda c: c[0], reverse=True)
+#: Highest confidence ever stated, and the highest with a whole step missing (see _cap).
+CONFIDENCE_CAP = 0.97
+MISSING_STEP_CAP = 0.85
+#: A best explanation needing this many independent faults is doubted as a whole.
+MANY_FAULTS = 3
+#: Findings that doubt the readings themselves: they lead, and the verdict is "retest".
+LEADING_CODES = frozenset({"setup_instrument", "setup_readings_inconsistent"})
+#: Set-up findings that call for a re-test when no credible fault stands.
+RETEST_CODES = frozenset({"setup_lead_offset", "setup_lead_offset_step", "setup_socket_contacts",
+                          "end_to_end_zero"})
 
 
 def _posterior(prep: Prepared, fit: Fit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -104,71 +106,84 @@ def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
     near = _neighbours(prep, post, x) if located else []
     if fit.code == "open_conductor":
         msg, nxt = messages.open_ring(fit.conductor, _named(near, names), located)
+        severity = "fault"
     else:
         msg, nxt = messages.joint(fit.conductor, fit.theta["r_ohm"], _named(near, names),
                                   located)
-    return Finding(fit.code, "fault", msg, nxt, tuple(near), conductor=fit.conductor,
+        severity = explain.joint_severity(fit.theta["r_ohm"])
+    return Finding(fit.code, severity, msg, nxt, tuple(near), conductor=fit.conductor,
                    confidence=confidence, position=x if located else None)
 
 
-def _local_finding(lf: LocalFault, names: dict) -> list[Finding]:
-    name = names.get(lf.outlet, lf.outlet)
-    if lf.code == "unrecorded_spur":
-        msg, nxt = messages.unrecorded_spur(name, 2.0 * (lf.r_ohm or 0.0))
-        return [Finding("unrecorded_spur", "fault", msg, nxt, (lf.outlet,),
-                        confidence=lf.confidence())]
-    if lf.code == "high_resistance_joint" and lf.swap is None and lf.tie is None:
-        msg, nxt = messages.joint(lf.conductor, lf.r_ohm or 0.0, [name], True, at_outlet=True)
-        return [Finding("high_resistance_joint", "fault", msg, nxt, (lf.outlet,),
-                        conductor=lf.conductor, confidence=lf.confidence())]
-    out = []
-    for code, conductor, swap in ((lf.code, lf.conductor, lf.swap), lf.tie):
-        msg, nxt = messages.ol_pattern(name, code, conductor, swap)
-        if lf.tie:
-            msg += " Both explanations fit these readings equally."
-        out.append(Finding(code, "fault", msg, nxt, (lf.outlet,), conductor=conductor,
-                           confidence=lf.confidence()))
-    return out
+def _cap(p: float, prep: Prepared) -> float:
+    """A stated confidence: never above CONFIDENCE_CAP (the model is never the whole truth:
+    readings carry meter noise, and the simulator the model was checked on is not the site),
+    and lower with a step missing (MISSING_STEP_CAP: faults that differ only in the missing
+    step cannot be told apart)."""
+    missing = bool(np.all(np.isnan(prep.ln_ohm)) or np.all(np.isnan(prep.le_ohm)))
+    return float(min(p, MISSING_STEP_CAP if missing else CONFIDENCE_CAP))
 
 
 def _fitted(test: RingTest, prep: Prepared) -> dict:
     """Fit, rank and locate. Returns findings, hypotheses, positions and ring order."""
-    n = prep.n_readings()
-    fits = fit_all(prep)
-    if not fits:
-        return {"findings": [], "hypotheses": [], "positions": {}}
-    combos = _combine(prep, fits, n)
-    scores = np.array([c[0] for c in combos])
-    weights = np.exp(scores - scores.max())
-    weights /= weights.sum()
+    combos, weights = ranking.rank(prep)
+    if not combos:
+        return {"findings": [], "hypotheses": [], "positions": {}, "contact_sd": None}
     names = {o.id: (f"{o.label} ({o.id})" if o.label and o.label != o.id else o.id)
              for o in test.outlets}
-    best_score, best_fit, best_local = combos[0]
-    post, place, sd = _posterior(prep, best_fit)
+    best = combos[0]
+    best_fit, used = best.fit, best.prep
+    post, place, sd = _posterior(used, best_fit)
     findings: list[Finding] = []
     if best_fit.code != "healthy":
-        findings.append(_fit_finding(prep, best_fit, float(weights[0]), post, place, names))
-    for lf in best_local:
-        findings.extend(_local_finding(lf, names))
+        conf = _cap(ranking.fit_weight(combos, weights, best_fit), prep)
+        findings.append(_fit_finding(used, best_fit, conf, post, place, names))
+    front = {o.id for o in test.outlets if getattr(o, "taken_at", None) == "front"}
+    local = [(lf, _cap(ranking.local_weight(combos, weights, lf), prep)) for lf in best.local]
+    findings.extend(explain.local_findings(used, local, names, front))
+    p_setup = ranking.setup_weight(combos, weights)
+    if best.setup is not None:
+        found = explain.setup_finding(best.setup, prep, _cap(p_setup, prep))
+        if found is not None:
+            findings.insert(0, found)
+    independent = (best_fit.code != "healthy") + sum(
+        lf.code != "setup_socket_contacts" for lf in best.local)
+    if independent >= MANY_FAULTS:
+        codes = ([best_fit.code] if best_fit.code != "healthy" else []) + [
+            lf.code for lf in best.local if lf.code != "setup_socket_contacts"]
+        msg, nxt = setup_messages.many_faults(independent, codes)
+        findings = [Finding("setup_readings_inconsistent", "warning", msg, nxt,
+                            confidence=_cap(float(weights[0]), prep))] + [
+            replace(f, severity="warning" if f.severity == "fault" else f.severity,
+                    confidence=None if f.confidence is None else f.confidence / 2)
+            for f in findings]
     hypotheses = []
-    for w, (score, fit, extra) in zip(weights, combos, strict=True):
-        label_outlets = [lf.outlet for lf in extra]
-        hypotheses.append({"code": fit.code, "conductor": fit.conductor, "step": fit.step,
-                           "outlets": label_outlets, "local": [lf.code for lf in extra],
-                           "confidence": round(float(w), 3), "score": round(float(score), 2)})
-    if len(combos) > 1 and scores[0] - scores[1] < LOOK_ALIKE_NATS:
-        first = best_local[0].code if best_fit.code == "healthy" and best_local else best_fit.code
-        _, fit2, local2 = combos[1]
-        second = local2[0].code if fit2.code == "healthy" and local2 else fit2.code
+    for w, c in zip(weights, combos, strict=True):
+        hypotheses.append({"code": c.fit.code, "conductor": c.fit.conductor, "step": c.fit.step,
+                           "outlets": [lf.outlet for lf in c.local],
+                           "local": [lf.code for lf in c.local],
+                           "setup": None if c.setup is None else c.setup.kind,
+                           "confidence": round(float(w), 3), "score": round(float(c.score), 2)})
+    if len(combos) > 1 and combos[0].score - combos[1].score < LOOK_ALIKE_NATS:
+        first = _lead_code(combos[0])
+        second = _lead_code(combos[1])
         if first != second and "healthy" not in (first, second):
             findings.append(Finding("look_alike", "info", messages.look_alike(first, second),
-                                    confidence=float(weights[1])))
+                                    confidence=_cap(float(weights[1]), prep)))
     # A sound ring (or one with crossed ends) reads the same whichever end an outlet is near:
     # its readings give no order to draw. A fault breaks that symmetry and places outlets.
     placed = best_fit.code not in POSITIONLESS
     positions = {oid: (float(place[i]) if placed else None, float(sd[i]))
                  for i, oid in enumerate(prep.ring_ids)}
-    return {"findings": findings, "hypotheses": hypotheses, "positions": positions}
+    return {"findings": findings, "hypotheses": hypotheses, "positions": positions,
+            "contact_sd": best_fit.contact_sd, "healthy": best_fit.code == "healthy"
+            and not best.local, "prep": used}
+
+
+def _lead_code(combo) -> str:
+    if combo.fit.code == "healthy" and combo.local:
+        return combo.local[0].code
+    return combo.fit.code
 
 
 def _ring_order(test: RingTest, positions: dict) -> list[str]:
@@ -179,25 +194,41 @@ def _ring_order(test: RingTest, positions: dict) -> list[str]:
     return sorted(ring, key=lambda oid: positions[oid][0])
 
 
-def _verdict(test: RingTest, findings: list[Finding]) -> str:
-    if any(f.severity in ("fault", "warning") for f in findings):
-        return "investigate"
+def _complete(test: RingTest) -> bool:
     e = test.end_to_end
-    complete = e.complete() and bool(test.outlets) and all(
-        o.ln_ohm is not None and o.le_ohm is not None for o in test.outlets)
-    return "satisfactory" if complete else "incomplete"
+    return (e.complete() and bool(test.outlets) and test.circuit.ze_ohm is not None
+            and all(o.ln_ohm is not None and o.le_ohm is not None for o in test.outlets))
+
+
+def _verdict(test: RingTest, findings: list[Finding]) -> str:
+    """retest when the leading finding doubts the readings, or a set-up check is due and no
+    credible fault stands; investigate for a credible fault; else incomplete / satisfactory.
+    Warnings alone (a check to make) leave a complete test satisfactory."""
+    if findings and findings[0].code in LEADING_CODES:
+        return "retest"
+    if any(f.severity == "fault" for f in findings):
+        return "investigate"
+    if any(f.code in RETEST_CODES and f.severity == "warning" for f in findings):
+        return "retest"
+    return "satisfactory" if _complete(test) else "incomplete"
 
 
 def _summary(verdict: str, findings: list[Finding], names: dict) -> str:
+    lead = findings[0] if findings else None
+    if verdict == "retest" and lead is not None:
+        shown = [names.get(o, o) for o in lead.outlets] if len(lead.outlets) <= 2 else []
+        code = next((f.code for f in findings if f.code in LEADING_CODES | RETEST_CODES),
+                    lead.code)
+        return messages.headline(code, lead.conductor, lead.step, shown)
     faults = [f for f in findings if f.severity == "fault"]
     if faults:
         top = faults[0]
         shown = [names.get(o, o) for o in top.outlets] if len(top.outlets) <= 2 else []
         return messages.headline(top.code, top.conductor, top.step, shown)
-    if verdict == "investigate":
-        return "No fault pattern in the readings, but some checks need attention."
     if verdict == "incomplete":
         return "No fault found so far; the test is not finished."
+    if any(f.severity == "warning" for f in findings):
+        return "The readings fit a sound ring; some checks need attention."
     return "The readings fit a sound ring with the recorded spurs."
 
 
@@ -209,7 +240,7 @@ def diagnose(record) -> dict:
     """
     test = record if isinstance(record, RingTest) else parse_record(record)
     findings: list[Finding] = []
-    fit_part = {"findings": [], "hypotheses": [], "positions": {}}
+    fit_part: dict = {"findings": [], "hypotheses": [], "positions": {}}
     prep = prepare(test)
     finite_e2e = int(np.count_nonzero(np.isfinite(prep.e2e_ohm)))
     has_steps = bool(np.any(~np.isnan(prep.ln_ohm)) or np.any(~np.isnan(prep.le_ohm)))
@@ -218,11 +249,19 @@ def diagnose(record) -> dict:
     fitted_open = {f.conductor for f in fit_part["findings"] if f.code == "open_conductor"}
     e2e = [f for f in checks.end_to_end_findings(test)
            if not (f.code == "open_conductor" and f.conductor in fitted_open)]
+    zs_values = zs.point_values(test)  # once per diagnosis: circuit, points and Zs findings
     findings = (fit_part["findings"] + e2e + checks.spur_findings(test)
-                + rules.topology_findings(test) + zs.zs_findings(test))
+                + rules.topology_findings(test) + zs.zs_findings(test, zs_values))
     order = {"fault": 0, "warning": 1, "info": 2}
-    findings.sort(key=lambda f: (order[f.severity], -(f.confidence or 0.0)))
-    circuit, points = zs.point_values(test)
+    findings.sort(key=lambda f: (f.code not in LEADING_CODES, order[f.severity],
+                                 -(f.confidence or 0.0)))
+    if fit_part.get("healthy") and _complete(test) and not any(
+            f.severity in ("fault", "warning") for f in findings):
+        limit = explain.detection_limit(fit_part["prep"], fit_part["contact_sd"],
+                                        test.circuit.live_csa_mm2)
+        if limit is not None:
+            findings.append(limit)
+    circuit, points = zs_values
     for p in points:
         pos = fit_part["positions"].get(p["id"])
         p["position"] = None if pos is None or pos[0] is None else round(pos[0], 3)
@@ -230,6 +269,7 @@ def diagnose(record) -> dict:
     verdict = _verdict(test, findings)
     return {
         "verdict": verdict,
+        "verdict_words": messages.VERDICT_WORDS[verdict],
         "summary": _summary(verdict, findings, {o.id: o.label or o.id for o in test.outlets}),
         "findings": [f.as_dict() for f in findings],
         "circuit": circuit,

@@ -18,12 +18,16 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ringmath.likelihood import (
+    LOG_CONTACT_PRIOR,
     Prepared,
     e2e_consistency,
     log_mean_exp,
     marginal_loglik,
     outlet_loglik,
+    per_scatter_loglik,
     reading_loglik,
+    scatter_estimate,
+    search_index,
     t_grid,
 )
 from ringmath.network import CONDUCTOR_INDEX, Layout, step_resistance
@@ -31,6 +35,8 @@ from ringmath.nodal import SHORT_OHM
 
 G_FINE = 64
 G_COARSE = 20
+#: Positions for the bridge's first uniform grid (about 200 candidates), before refinement.
+G_GRID = 14
 #: Prior probabilities of each explanation (our working figures: most rings are sound).
 PRIORS = {
     "healthy": 0.70,
@@ -54,7 +60,10 @@ class Fit:
     theta: the parameters (positions as ring fractions, resistances in ohms).
     ring_ohm: cable resistances used (line, neutral, cpc). pred_ln/pred_le: (G_FINE,) model
     values at the best parameters. theta_sd: spread of the position parameters' profile
-    (ring fractions), a measure of how well the readings locate the fault.
+    (ring fractions), a measure of how well the readings locate the fault. contact_sd: the
+    ring's extra reading scatter (ohms sd) these readings imply under this hypothesis
+    (posterior mean over the grid). scatter_cons: (S,) step 1's term plus the log prior of
+    each contact sd of the grid, for the outlet-level alternatives (which re-weigh the sd).
     """
 
     code: str
@@ -68,6 +77,8 @@ class Fit:
     pred_le: np.ndarray | None = None
     theta_sd: float | None = None
     log_occam: float = 0.0
+    contact_sd: float = 0.0
+    scatter_cons: np.ndarray | None = None
 
     def score(self, n_readings: int) -> float:
         """BIC-style score: loglik + log_occam - k/2 ln(n) + ln(prior). ``log_occam`` (<= 0)
@@ -102,13 +113,29 @@ def fit_healthy(prep: Prepared, wrong_step: str | None = None) -> Fit:
     ln, le = _steps(_PLAIN, marks, rings,
                     ln_step="ln_wrong" if wrong_step == "ln" else "ln",
                     le_step="le_wrong" if wrong_step == "le" else "le")
-    ll = float(marginal_loglik(prep, ln[None], le[None])[0]) + e2e_consistency(ring, prep)
+    cons = e2e_consistency(ring, prep)
+    ll, sd = _final(prep, ln, le, cons)
     code = "healthy" if wrong_step is None else "wrong_cross_connection"
-    return Fit(code, None, wrong_step, ll, 0, {}, tuple(ring), ln, le)
+    return Fit(code, None, wrong_step, ll, 0, {}, tuple(ring), ln, le, contact_sd=sd,
+               scatter_cons=_scatter_cons(cons))
 
 
-def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int) -> tuple[np.ndarray, ...]:
-    """theta: (T, 3) rows of (a, b, fraction). Returns loglik (T,), ln, le (T, g), ring (T, 3)."""
+def _scatter_cons(cons) -> np.ndarray:
+    return np.broadcast_to(np.asarray(cons, dtype=float), LOG_CONTACT_PRIOR.shape) + \
+        LOG_CONTACT_PRIOR
+
+
+def _final(prep: Prepared, ln: np.ndarray, le: np.ndarray, cons) -> tuple[float, float]:
+    """Marginal log-likelihood of one hypothesis' (G,) predictions and its scatter estimate."""
+    per_s = per_scatter_loglik(prep, ln[None], le[None], cons)[:, 0]
+    top = float(per_s.max())
+    return top + float(np.log(np.sum(np.exp(per_s - top)))), scatter_estimate(per_s)
+
+
+def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int,
+                 s_index: int | None = None) -> tuple[np.ndarray, ...]:
+    """theta: (T, 3) rows of (a, b, fraction). Returns loglik (T,), ln, le (T, g), ring (T, 3);
+    s_index: search at one contact sd (``marginal_loglik``)."""
     n = theta.shape[0]
     ends = np.concatenate([theta[:, :1], theta[:, :2]], axis=1)  # probe parked at a
     unit = step_resistance(_BRIDGE, "e2e:line", ends, np.ones((n, 3)),
@@ -120,7 +147,7 @@ def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int) -> tuple[np.ndarray,
     ln, le = _steps(_BRIDGE, marks, rings, extra=extra)
     ln, le = ln.reshape(n, g), le.reshape(n, g)
     cons = e2e_consistency(prep.e2e_ohm, prep)
-    return marginal_loglik(prep, ln, le) + cons, ln, le, ring
+    return marginal_loglik(prep, ln, le, cons, s_index), ln, le, ring
 
 
 def _bridge_grid() -> np.ndarray:
@@ -175,29 +202,35 @@ def _canonical_bridge(rows: np.ndarray) -> np.ndarray:
     return rows
 
 
-def fit_bridge(prep: Prepared) -> Fit:
+def fit_bridge(prep: Prepared, s_index: int | None = None) -> Fit:
     """An interconnection: a cable joining ring positions a < b in all three conductors, of
-    resistance ``fraction`` x the ring's resistance (same cable). 3 parameters."""
+    resistance ``fraction`` x the ring's resistance (same cable). 3 parameters. The search
+    runs at contact sd ``s_index`` (None: integrated); the best fit is scored integrated."""
     grid = _bridge_grid()
-    ll, *_ = _bridge_eval(prep, grid, G_COARSE)
+    ll, *_ = _bridge_eval(prep, grid, G_GRID, s_index)
 
     def evaluate(rows):
-        return _bridge_eval(prep, _canonical_bridge(rows), G_COARSE)[0]
+        return _bridge_eval(prep, _canonical_bridge(rows), G_COARSE, s_index)[0]
 
     theta, lls = _refine(evaluate, grid, ll, np.array([1 / 24, 1 / 24, -0.5]),
                          [0.005, 0.02, 0.002], [0.49, 0.995, 3.0])
     best = _canonical_bridge(theta[int(np.argmax(lls))][None])[0]
-    llb, ln, le, ring = _bridge_eval(prep, best[None], G_FINE)
+    _, ln, le, ring = _bridge_eval(prep, best[None], G_FINE)
+    cons = e2e_consistency(prep.e2e_ohm, prep)
+    llb, contact = _final(prep, ln[0], le[0], cons)
     # spread over the uniform starting grid only (the refinement samples are not uniform)
     sd = max(_position_sd(grid[:, 0], ll), _position_sd(grid[:, 1], ll))
-    return Fit("interconnection", None, None, float(llb[0]), 3,
+    return Fit("interconnection", None, None, llb, 3,
                {"a": float(best[0]), "b": float(best[1]), "fraction": float(best[2])},
-               tuple(ring[0]), ln[0], le[0], sd)
+               tuple(ring[0]), ln[0], le[0], sd, contact_sd=contact,
+               scatter_cons=_scatter_cons(cons))
 
 
 def _series_eval(prep: Prepared, conductor: str, ring: np.ndarray, x: np.ndarray,
-                 series_value_s: float, g: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """A series element of ``series_value_s`` siemens in one conductor at each position x."""
+                 series_value_s: float, g: int, cons,
+                 s_index: int | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """A series element of ``series_value_s`` siemens in one conductor at each position x;
+    ``cons`` is step 1's term per contact sd."""
     n = x.shape[0]
     marks = _with_probe(x[:, None], g)
     series = np.full((n * g, 3, 2), 1.0 / SHORT_OHM)
@@ -205,29 +238,31 @@ def _series_eval(prep: Prepared, conductor: str, ring: np.ndarray, x: np.ndarray
     rings = np.tile(ring, (n * g, 1))
     ln, le = _steps(_SPLIT, marks, rings, series=series)
     ln, le = ln.reshape(n, g), le.reshape(n, g)
-    return marginal_loglik(prep, ln, le), ln, le
+    return marginal_loglik(prep, ln, le, cons, s_index), ln, le
 
 
 def _fit_series(prep: Prepared, code: str, conductor: str, ring: np.ndarray,
-                series_s: float, cons: float, k: int, extra: dict) -> Fit:
+                series_s: float, cons, k: int, extra: dict, s_index: int | None) -> Fit:
     xs = (np.arange(24) + 0.5) / 48  # one half of the ring
-    ll, _, _ = _series_eval(prep, conductor, ring, xs, series_s, G_COARSE)
+    ll, _, _ = _series_eval(prep, conductor, ring, xs, series_s, G_COARSE, cons, s_index)
 
     def evaluate(rows):
-        return _series_eval(prep, conductor, ring, rows[:, 0], series_s, G_COARSE)[0]
+        return _series_eval(prep, conductor, ring, rows[:, 0], series_s, G_COARSE, cons,
+                            s_index)[0]
 
     theta, lls = _refine(evaluate, xs[:, None], ll, np.array([1 / 96]), [0.002], [0.5],
                          rounds=2)
     best = float(theta[int(np.argmax(lls)), 0])
-    llb, ln, le = _series_eval(prep, conductor, ring, np.array([best]), series_s, G_FINE)
+    _, ln, le = _series_eval(prep, conductor, ring, np.array([best]), series_s, G_FINE, cons)
+    llb, contact = _final(prep, ln[0], le[0], cons)
     sd = _position_sd(xs, ll)
     # the break or joint position is a nuisance: average it over its uniform grid (Occam)
     occam = min(float(log_mean_exp(ll) - np.max(lls)), 0.0)
-    return Fit(code, conductor, None, float(llb[0]) + cons, k, {"x": best, **extra},
-               tuple(ring), ln[0], le[0], sd, occam)
+    return Fit(code, conductor, None, llb, k, {"x": best, **extra},
+               tuple(ring), ln[0], le[0], sd, occam, contact, _scatter_cons(cons))
 
 
-def fit_open(prep: Prepared, conductor: str) -> Fit | None:
+def fit_open(prep: Prepared, conductor: str, s_index: int | None = None) -> Fit | None:
     """A break in one ring conductor at an unknown position x (its end-to-end reading is OL).
 
     The broken conductor's cable resistance is taken from the others by the conductor table
@@ -246,21 +281,23 @@ def fit_open(prep: Prepared, conductor: str) -> Fit | None:
     ring[c] = float(np.mean([e2e[i] / ratio[i] for i in others])) * ratio[c]
     cons = e2e_consistency(np.where(np.isinf(e2e), np.nan, e2e), prep)
     cons += float(reading_loglik(np.array(np.inf), np.array(np.inf)))
-    return _fit_series(prep, "open_conductor", conductor, ring, 0.0, cons, 0, {})
+    return _fit_series(prep, "open_conductor", conductor, ring, 0.0, cons, 0, {}, s_index)
 
 
-def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
+def fit_joint(prep: Prepared, conductor: str, s_index: int | None = None) -> Fit | None:
     """A high-resistance joint J ohms in series in one ring conductor at position x.
 
-    J is the conductor's end-to-end excess over what the other two conductors imply: one
-    fitted parameter; the position is integrated. None when the excess is below JOINT_MIN_OHM.
+    J is the conductor's end-to-end excess over what the other two conductors imply (line and
+    neutral only when the cpc is not the cable's, ``prep.cpc_free``): one fitted parameter; the
+    position is integrated. None when the excess is below JOINT_MIN_OHM.
     """
     c = CONDUCTOR_INDEX[conductor]
     e2e = prep.e2e_ohm
-    if not np.all(np.isfinite(e2e)):
+    if not np.all(np.isfinite(e2e)) or (prep.cpc_free and conductor == "cpc"):
         return None
     ratio = np.array([1.0, prep.ratio_n, prep.ratio_e])
-    others = [i for i in range(3) if i != c]
+    # a metallic or parallel cpc says nothing about the cable: line and neutral judge each other
+    others = [i for i in range(3) if i != c and not (prep.cpc_free and i == 2)]
     expected = float(np.mean([e2e[i] / ratio[i] for i in others])) * ratio[c]
     joint = float(e2e[c] - expected)
     if joint < JOINT_MIN_OHM:
@@ -269,7 +306,7 @@ def fit_joint(prep: Prepared, conductor: str) -> Fit | None:
     ring[c] = expected
     cons = e2e_consistency(ring, prep)
     return _fit_series(prep, "high_resistance_joint", conductor, ring, 1.0 / joint, cons, 1,
-                       {"r_ohm": joint})
+                       {"r_ohm": joint}, s_index)
 
 
 def fit_all(prep: Prepared) -> list[Fit]:
@@ -278,12 +315,17 @@ def fit_all(prep: Prepared) -> list[Fit]:
     if np.any(np.isnan(prep.e2e_ohm)) or np.any(prep.e2e_ohm <= 0):
         return []
     fits: list[Fit | None] = []
+    # parameter searches run at the contact sd the sound ring implies (every candidate then
+    # shares it); each best fit is then scored with the sd integrated
+    s_index = None
     if np.all(np.isfinite(prep.e2e_ohm)):
-        fits += [fit_healthy(prep), fit_healthy(prep, "ln"), fit_healthy(prep, "le"),
-                 fit_bridge(prep)]
+        healthy = fit_healthy(prep)
+        s_index = search_index(healthy.contact_sd)
+        fits += [healthy, fit_healthy(prep, "ln"), fit_healthy(prep, "le"),
+                 fit_bridge(prep, s_index)]
     for conductor in CONDUCTOR_INDEX:
-        fits.append(fit_open(prep, conductor))
-        fits.append(fit_joint(prep, conductor))
+        fits.append(fit_open(prep, conductor, s_index))
+        fits.append(fit_joint(prep, conductor, s_index))
     n = prep.n_readings()
     found = [f for f in fits if f is not None]
     return sorted(found, key=lambda f: f.score(n), reverse=True)
@@ -298,6 +340,6 @@ def confidences(fits: list[Fit], n_readings: int) -> np.ndarray:
 
 def position_posterior(prep: Prepared, fit: Fit) -> np.ndarray:
     """(n_ring, G_FINE) posterior over the t grid of each ring outlet under ``fit``."""
-    ll = outlet_loglik(prep, fit.pred_ln[None], fit.pred_le[None])[0]
+    ll = outlet_loglik(prep, fit.pred_ln[None], fit.pred_le[None], fit.contact_sd)[0]
     lme = log_mean_exp(ll, axis=-1)
     return np.exp(ll - lme[:, None]) / ll.shape[-1]

@@ -3,9 +3,13 @@
 The numeric view of a record (``Prepared``) and the pieces every hypothesis shares:
 
 * a reading model: a displayed reading ``x`` given the model's value ``mu`` is normal with
-  sigma = ``meter.sigma_ohm(mu)``, mixed with a small outlier probability (a misread or a poor
-  probe contact) so one odd reading cannot drag a whole-ring hypothesis; an "OL" reading has
-  probability ``P_OL_FALSE`` when the model predicts a finite value and the converse;
+  sigma = hypot(``meter.sigma_ohm(mu)``, s), mixed with a small outlier probability (a misread
+  or a slipped probe) so one odd reading cannot drag a whole-ring hypothesis; an "OL" reading
+  has probability ``P_OL_FALSE`` when the model predicts a finite value and the converse;
+* the ring's own scatter s (probe contact, workmanship): not assumed but estimated from the
+  ring's many readings, by averaging every hypothesis' likelihood over a small grid of contact
+  sd ``CONTACT_SD_OHM`` with the prior ``CONTACT_PRIOR`` (a marginal likelihood: a fault has
+  to beat "these readings are just noisier" on the same terms);
 * positions: each ring outlet sits at an unknown fraction t of the ring with a uniform prior;
   its likelihood is averaged over a grid of t (a marginal likelihood), so positions never
   count as fitted parameters;
@@ -21,6 +25,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ringmath import meter
+from ringmath.checks.expected import used_reading
 from ringmath.conductors import resistance_mohm_per_m
 from ringmath.record import RingTest
 
@@ -30,6 +35,18 @@ P_OL_FALSE = 1e-4
 P_OUTLIER = 2e-3
 OUTLIER_RANGE_OHM = 5.0
 LOG_OUTLIER = np.log(P_OUTLIER / OUTLIER_RANGE_OHM)
+#: Grid of the ring's extra reading scatter (probe contact etc., ohms sd) and its prior. Our
+#: working figures: a firm probe on clean terminals adds almost nothing, worn contacts and a
+#: hurried plug-in lead 0.02-0.03 Ω (common practice), 0.045 Ω is a poor set-up.
+CONTACT_SD_OHM = np.array([0.0, 0.012, 0.022, 0.032, 0.045])
+CONTACT_PRIOR = np.array([0.40, 0.25, 0.18, 0.12, 0.05])
+LOG_CONTACT_PRIOR = np.log(CONTACT_PRIOR)
+#: r2 below this fraction of the cable's own value: the cpc is not (only) the cable core
+#: (metallic containment or a parallel earth path), so r2/r1 says nothing about the cable.
+CPC_FREE_BELOW = 0.6
+#: Prior probability, per outlet, of a high contact resistance at the socket (worn contacts,
+#: plug-in lead), by where the reading was taken (our working figures).
+CONTACT_FAULT_PRIOR = {"front": 0.06, None: 0.015, "terminals": 0.0005}
 #: Relative spread of r2/r1 about the tabulated ratio on a sound ring of one cable type
 #: (copper and sizes alike in every core; our working figure, common practice expects
 #: r2 ≈ 1.67 x r1 for 2.5/1.5 closely).
@@ -52,7 +69,10 @@ class Prepared:
     child_*: outlets spurred directly from a ring outlet (child_parent indexes ring_ids);
     child_kn / child_ke: the spur cable's neutral/line and cpc/line resistance ratios;
     child_fused: fed through an FCU (free excesses). ratio_n / ratio_e: the ring's expected
-    rn/r1 and r2/r1 from the conductor table.
+    rn/r1 and r2/r1 from the conductor table (ratio_e as measured when ``cpc_free``).
+    contact_prior: per ring outlet, the prior of a high socket contact (CONTACT_FAULT_PRIOR by
+    where it was read). cpc_free: the cpc is metallic containment, has parallel paths, or r2 is
+    far below the cable's value: r2/r1 is then not a check of the cable.
     """
 
     e2e_ohm: np.ndarray
@@ -68,6 +88,8 @@ class Prepared:
     child_fused: np.ndarray
     ratio_n: float
     ratio_e: float
+    contact_prior: np.ndarray | None = None
+    cpc_free: bool = False
 
     def n_readings(self) -> int:
         """Readings that carry information (taken, finite or OL)."""
@@ -101,41 +123,72 @@ def prepare(test: RingTest) -> Prepared:
         ke.append(resistance_mohm_per_m(cpc) / resistance_mohm_per_m(live))
         fused.append(by_id[o.spur_from].kind == "fcu")
     e = test.end_to_end
+    ratio_e = rho_e / rho_l
+    cpc_kind = getattr(c, "cpc_kind", "cable_core") or "cable_core"
+    cpc_free = cpc_kind != "cable_core" or bool(getattr(c, "parallel_paths", False))
+    r1, r2 = _val(e.r1_ohm), _val(e.r2_ohm)
+    if np.isfinite(r1) and np.isfinite(r2) and r1 > 0 and r2 < CPC_FREE_BELOW * r1 * ratio_e:
+        cpc_free = True
+    if cpc_free and np.isfinite(r1) and np.isfinite(r2) and r1 > 0 and r2 > 0:
+        ratio_e = r2 / r1
     return Prepared(
         e2e_ohm=np.array([_val(e.r1_ohm), _val(e.rn_ohm), _val(e.r2_ohm)]),
         ring_ids=tuple(o.id for o in ring),
-        ln_ohm=np.array([_val(o.ln_ohm) for o in ring]),
-        le_ohm=np.array([_val(o.le_ohm) for o in ring]),
+        ln_ohm=np.array([_val(used_reading(o, "ln")) for o in ring]),
+        le_ohm=np.array([_val(used_reading(o, "le")) for o in ring]),
         child_ids=tuple(o.id for o in kids),
         child_parent=np.array([index[o.spur_from] for o in kids], dtype=np.intp),
-        child_ln_ohm=np.array([_val(o.ln_ohm) for o in kids]),
-        child_le_ohm=np.array([_val(o.le_ohm) for o in kids]),
+        child_ln_ohm=np.array([_val(used_reading(o, "ln")) for o in kids]),
+        child_le_ohm=np.array([_val(used_reading(o, "le")) for o in kids]),
         child_kn=np.array(kn),
         child_ke=np.array(ke),
         child_fused=np.array(fused, dtype=bool),
         ratio_n=1.0,
-        ratio_e=rho_e / rho_l,
+        ratio_e=float(ratio_e),
+        contact_prior=np.array([CONTACT_FAULT_PRIOR[_where(o)] for o in ring]),
+        cpc_free=cpc_free,
     )
 
 
-def reading_loglik(x: np.ndarray, mu: np.ndarray) -> np.ndarray:
+def _where(outlet) -> str | None:
+    """Where an outlet's readings were taken: "terminals" when re-measured there, else the
+    recorded ``taken_at`` ("front", "terminals" or None)."""
+    if (getattr(outlet, "ln_terminals_ohm", None) is not None
+            or getattr(outlet, "le_terminals_ohm", None) is not None):
+        return "terminals"
+    where = getattr(outlet, "taken_at", None)
+    return where if where in CONTACT_FAULT_PRIOR else None
+
+
+def reading_loglik(x: np.ndarray, mu: np.ndarray, extra_sd=0.0) -> np.ndarray:
     """Log-likelihood of displayed readings ``x`` (ohms; nan = not taken -> 0; inf = OL)
-    given model values ``mu`` (ohms; inf = open). Broadcasts."""
-    x, mu = np.broadcast_arrays(np.asarray(x, dtype=float), np.asarray(mu, dtype=float))
-    out = np.zeros(x.shape)
+    given model values ``mu`` (ohms; inf = open) and the ring's extra scatter ``extra_sd``
+    (ohms sd, added in quadrature to the meter's ``meter.sigma_ohm``). Broadcasts.
+
+    Computed on whole arrays (no masked copies): the Gaussian part is evaluated everywhere on
+    safe stand-in values and only kept where reading and model are both finite.
+    """
+    x = np.asarray(x, dtype=float)
+    mu = np.asarray(mu, dtype=float)
+    x_fin, mu_fin = np.isfinite(x), np.isfinite(mu)
+    fin = x_fin & mu_fin
+    xs = np.where(x_fin, x, 0.0)
+    ms = np.where(mu_fin, np.maximum(mu, 0.0), 0.0)
+    # sigma² = meter.sigma_ohm(mu)² + extra² (the meter formula written out for arrays)
+    var = (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * ms) ** 2
+           + np.asarray(extra_sd, dtype=float) ** 2)
+    gauss = _LOG_INLIER - 0.5 * (xs - ms) ** 2 / var - 0.5 * np.log(var)
+    mixed = np.logaddexp(gauss, LOG_OUTLIER)
+    if np.all(fin):
+        return mixed
     x_ol, mu_ol = np.isinf(x), np.isinf(mu)
     taken = ~np.isnan(x)
-    both = taken & x_ol & mu_ol
-    out[both] = np.log1p(-P_OL_FALSE)
-    out[taken & (x_ol != mu_ol)] = np.log(P_OL_FALSE)
-    fin = taken & ~x_ol & ~mu_ol
-    if np.any(fin):
-        m = mu[fin]
-        sig = meter.sigma_ohm(m)
-        z = (x[fin] - m) / sig
-        gauss = np.log1p(-P_OUTLIER) - 0.5 * z * z - np.log(sig * np.sqrt(2 * np.pi))
-        out[fin] = np.logaddexp(gauss, LOG_OUTLIER)
+    ol = np.where(x_ol & mu_ol, np.log1p(-P_OL_FALSE), np.log(P_OL_FALSE))
+    out = np.where(fin, mixed, np.where(taken & (x_ol | mu_ol), ol, 0.0))
     return out
+
+
+_LOG_INLIER = float(np.log1p(-P_OUTLIER) - 0.5 * np.log(2 * np.pi))
 
 
 def _profile_spur(d_ln: np.ndarray, d_le: np.ndarray, a_ln: float, a_le: float,
@@ -152,9 +205,11 @@ def _profile_spur(d_ln: np.ndarray, d_le: np.ndarray, a_ln: float, a_le: float,
     return np.maximum(s, s_min)
 
 
-def children_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray) -> np.ndarray:
+def children_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
+                    extra_sd=0.0) -> np.ndarray:
     """Log-likelihood of each recorded spur child's readings, (..., n_children, G), given its
-    ring point's model values ``pred_ln``/``pred_le`` of shape (..., G) in ohms."""
+    ring point's model values ``pred_ln``/``pred_le`` of shape (..., G) in ohms (a leading
+    axis of ``extra_sd`` broadcasts in front)."""
     if not prep.child_ids:
         return np.zeros(pred_ln.shape[:-1] + (0, pred_ln.shape[-1]))
     ln = prep.child_ln_ohm[:, None]
@@ -171,20 +226,24 @@ def children_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray) ->
     mu_le = np.where(fused, np.maximum(le, p_le), p_le + a_le * s)
     mu_ln = np.where(np.isfinite(ln), mu_ln, p_ln)
     mu_le = np.where(np.isfinite(le), mu_le, p_le)
-    return reading_loglik(ln, mu_ln) + reading_loglik(le, mu_le)
+    return reading_loglik(ln, mu_ln, extra_sd) + reading_loglik(le, mu_le, extra_sd)
 
 
-def outlet_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray) -> np.ndarray:
+def outlet_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
+                  extra_sd: float | None = 0.0) -> np.ndarray:
     """Per ring outlet and position, the log-likelihood of its readings and its spurs'.
 
     pred_ln, pred_le: (T, G) model values in ohms for T hypotheses on the t grid.
-    Returns (T, n_ring, G).
+    extra_sd: the ring's extra scatter in ohms; None for every value of CONTACT_SD_OHM.
+    Returns (T, n_ring, G), or (S, T, n_ring, G) for extra_sd None.
     """
-    ll = (reading_loglik(prep.ln_ohm[None, :, None], pred_ln[:, None, :])
-          + reading_loglik(prep.le_ohm[None, :, None], pred_le[:, None, :]))
+    sd = CONTACT_SD_OHM[:, None, None, None] if extra_sd is None else extra_sd
+    ll = (reading_loglik(prep.ln_ohm[None, :, None], pred_ln[:, None, :], sd)
+          + reading_loglik(prep.le_ohm[None, :, None], pred_le[:, None, :], sd))
     if prep.child_ids:
-        kids = children_loglik(prep, pred_ln, pred_le)  # (T, m, G)
-        np.add.at(ll, (slice(None), prep.child_parent), kids)
+        kids = children_loglik(prep, pred_ln, pred_le, sd)  # ([S,] T, m, G)
+        ll = ll + np.zeros(kids.shape[:-3] + (1, 1, 1))
+        np.add.at(ll, (Ellipsis, prep.child_parent, slice(None)), kids)
     return ll
 
 
@@ -195,26 +254,68 @@ def log_mean_exp(a: np.ndarray, axis: int = -1) -> np.ndarray:
     return np.squeeze(top, axis=axis) + np.log(np.mean(np.exp(a - top), axis=axis))
 
 
-def marginal_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray) -> np.ndarray:
-    """Sum over ring outlets of the position-averaged log-likelihood, (T,)."""
-    return log_mean_exp(outlet_loglik(prep, pred_ln, pred_le), axis=-1).sum(axis=-1)
+def per_scatter_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
+                       cons: np.ndarray | float = 0.0) -> np.ndarray:
+    """(S, T): for each contact sd of the grid, the sum over ring outlets of the
+    position-averaged log-likelihood, plus ``cons`` (step 1's term, (S,) or (S, T)) and the
+    log prior of that sd."""
+    per_s = log_mean_exp(outlet_loglik(prep, pred_ln, pred_le, None), axis=-1).sum(axis=-1)
+    cons = np.asarray(cons, dtype=float)
+    if cons.ndim == 1:
+        cons = cons[:, None]
+    return per_s + cons + LOG_CONTACT_PRIOR[:, None]
 
 
-def e2e_consistency(r_ohm: np.ndarray, prep: Prepared) -> float:
-    """Log-likelihood that ring cable resistances ``r_ohm`` (line, neutral, cpc; nan unknown)
-    belong to one healthy cable: rn = r1 x ratio_n and r2 = r1 x ratio_e within cable tolerance
-    (1 % live/neutral, CPC_RATIO_TOL for the cpc ratio; our own working figures) and meter
-    noise."""
-    total = 0.0
+def marginal_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
+                    cons: np.ndarray | float = 0.0, s_index: int | None = None) -> np.ndarray:
+    """(T,): the readings' log-likelihood with positions averaged and the ring's scatter
+    integrated over its grid (``per_scatter_loglik``, log-sum-exp over the sd axis).
+
+    s_index: use only that contact sd of the grid (a parameter search, where only the ranking
+    of the candidates matters; five times less work)."""
+    if s_index is None:
+        return _logsumexp0(per_scatter_loglik(prep, pred_ln, pred_le, cons))
+    sd = float(CONTACT_SD_OHM[s_index])
+    per = log_mean_exp(outlet_loglik(prep, pred_ln, pred_le, sd), axis=-1).sum(axis=-1)
+    c = np.asarray(cons, dtype=float)
+    c = c[s_index] if c.ndim else c
+    return per + c + LOG_CONTACT_PRIOR[s_index]
+
+
+def search_index(contact_sd: float) -> int:
+    """The grid index of the contact sd nearest ``contact_sd`` ohms."""
+    return int(np.argmin(np.abs(CONTACT_SD_OHM - contact_sd)))
+
+
+def _logsumexp0(a: np.ndarray) -> np.ndarray:
+    top = np.max(a, axis=0)
+    top = np.where(np.isfinite(top), top, 0.0)
+    return top + np.log(np.sum(np.exp(a - top), axis=0))
+
+
+def scatter_estimate(per_s: np.ndarray) -> float:
+    """Posterior mean contact sd (ohms) from one column of ``per_scatter_loglik``."""
+    w = np.exp(per_s - per_s.max())
+    return float(np.sum(w * CONTACT_SD_OHM) / np.sum(w))
+
+
+def e2e_consistency(r_ohm: np.ndarray, prep: Prepared) -> np.ndarray:
+    """(S,): log-likelihood, for each contact sd of the grid, that ring cable resistances
+    ``r_ohm`` (line, neutral, cpc; nan unknown) belong to one healthy cable: rn = r1 x ratio_n
+    and r2 = r1 x ratio_e within cable tolerance (1 % live/neutral, CPC_RATIO_TOL for the cpc
+    ratio; our own working figures), meter noise and the contact scatter of two readings.
+    The cpc pair is left out when ``prep.cpc_free`` (r2 is then not the cable's)."""
+    total = np.zeros(len(CONTACT_SD_OHM))
     r1, rn, r2 = (float(v) for v in r_ohm)
-    pairs = ((r1, rn, prep.ratio_n, 0.01), (r1, r2, prep.ratio_e, CPC_RATIO_TOL))
+    pairs = [(r1, rn, prep.ratio_n, 0.01)]
+    if not prep.cpc_free:
+        pairs.append((r1, r2, prep.ratio_e, CPC_RATIO_TOL))
+        if np.isfinite(rn) and np.isfinite(r2) and not np.isfinite(r1):
+            pairs.append((rn, r2, prep.ratio_e / prep.ratio_n, CPC_RATIO_TOL))
     for a, b, ratio, tol in pairs:
         if np.isfinite(a) and np.isfinite(b):
-            sig = np.hypot(meter.SIGMA_FLOOR_OHM * np.sqrt(2), tol * b)
+            sig = np.sqrt(2 * meter.SIGMA_FLOOR_OHM**2 + (tol * b) ** 2
+                          + 2 * CONTACT_SD_OHM**2)
             z = (b - a * ratio) / sig
             total += -0.5 * z * z - np.log(sig * np.sqrt(2 * np.pi))
-    if np.isfinite(rn) and np.isfinite(r2) and not np.isfinite(r1):
-        sig = np.hypot(meter.SIGMA_FLOOR_OHM * np.sqrt(2), CPC_RATIO_TOL * r2)
-        z = (r2 - rn * prep.ratio_e / prep.ratio_n) / sig
-        total += -0.5 * z * z - np.log(sig * np.sqrt(2 * np.pi))
     return total

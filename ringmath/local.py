@@ -3,7 +3,9 @@
 For each outlet the readings of the rest of the ring are kept and only that outlet's own
 readings are re-explained: as an unrecorded spur (both readings raised in the spur cable's
 ratio), a high-resistance joint at its terminals (line: both readings raised alike; neutral:
-step 2 only; cpc: step 3 only), or a pattern of "OL" readings (swapped terminals or a
+step 2 only; cpc: step 3 only), a high contact resistance in the socket itself (the same
+three patterns, through the plug-in lead's pins: likely when read from the front, nearly
+impossible at the terminals), or a pattern of "OL" readings (swapped terminals or a
 conductor not connected at the outlet). Each alternative's gain is a log-likelihood ratio
 the excess resistance integrated over a uniform prior range (Bayesian evidence, so no extra
 penalty is needed) and the outlet's prior probability of that fault.
@@ -24,6 +26,8 @@ import numpy as np
 
 from ringmath.fitting import JOINT_MIN_OHM, Fit
 from ringmath.likelihood import (
+    CONTACT_SD_OHM,
+    LOG_CONTACT_PRIOR,
     P_OL_FALSE,
     Prepared,
     log_mean_exp,
@@ -43,7 +47,14 @@ LOCAL_PRIORS = {
 #: in the range, so a larger excess has to earn its place (the Occam factor).
 SPUR_RANGE_OHM = (0.015, 0.4)
 JOINT_RANGE_OHM = (JOINT_MIN_OHM, 1.0)
-R_POINTS = 40
+#: A worn or dirty socket contact read through a plug-in lead: a few hundredths to about an
+#: ohm (our working figure). Its prior per outlet is likelihood.CONTACT_FAULT_PRIOR, by where
+#: the reading was taken (far more likely from the front than at the terminals).
+CONTACT_RANGE_OHM = (JOINT_MIN_OHM, 1.0)
+CONTACT_DEFAULT_PRIOR = 0.015
+R_POINTS = 16
+#: Every LOCAL_THIN-th point of the fit's position grid is used for the outlet alternatives.
+LOCAL_THIN = 2
 
 #: OL pattern (ln is OL, le is OL) -> the tied explanations as (code, conductor, swap)
 OL_PATTERNS = {
@@ -76,11 +87,13 @@ class LocalFault:
         return float(p / 2 if self.tie else p)
 
 
-def _best_fit(x: float) -> float:
-    """Highest log-likelihood a reading of ``x`` ohms can get from any model value."""
-    if np.isnan(x) or np.isinf(x):
-        return 0.0
-    return float(reading_loglik(np.array(x), np.array(x))) + 0.05
+def _best_fit(x: np.ndarray, sd: float) -> np.ndarray:
+    """Highest log-likelihood readings of ``x`` ohms can get from any model value (0 for a
+    reading not taken or OL)."""
+    x = np.asarray(x, dtype=float)
+    clean = np.where(np.isfinite(x), x, 0.0)
+    best = reading_loglik(clean, clean, sd) + 0.05
+    return np.where(np.isfinite(x), best, 0.0)
 
 
 def _ol_faults(outlet: str, ln: float, le: float) -> LocalFault | None:
@@ -93,51 +106,81 @@ def _ol_faults(outlet: str, ln: float, le: float) -> LocalFault | None:
     return LocalFault(outlet, code, conductor, float(gain), None, swap, tie)
 
 
+def _options(prep: Prepared) -> list[tuple]:
+    """(code, conductor, step 2 factor, step 3 factor, range, log prior per ring outlet)."""
+    n = len(prep.ring_ids)
+    contact = (prep.contact_prior if prep.contact_prior is not None
+               else np.full(n, CONTACT_DEFAULT_PRIOR))
+    log_contact = np.log(contact / 3.0)  # one of the three pins
+    opts = [("unrecorded_spur", None, 2.0, 1.0 + prep.ratio_e, SPUR_RANGE_OHM,
+             np.full(n, np.log(LOCAL_PRIORS["unrecorded_spur"])))]
+    for conductor, a_ln, a_le in (("line", 1.0, 1.0), ("neutral", 1.0, 0.0), ("cpc", 0.0, 1.0)):
+        opts.append(("high_resistance_joint", conductor, a_ln, a_le, JOINT_RANGE_OHM,
+                     np.full(n, np.log(LOCAL_PRIORS["high_resistance_joint"]))))
+        opts.append(("setup_socket_contacts", conductor, a_ln, a_le, CONTACT_RANGE_OHM,
+                     log_contact))
+    return opts
+
+
 def local_faults(prep: Prepared, fit: Fit) -> list[LocalFault]:
     """The outlets better explained by a local fault than as recorded under ``fit``; the best
-    alternative per outlet, largest gain first."""
-    p_ln, p_le = fit.pred_ln, fit.pred_le
-    base = outlet_loglik(prep, p_ln[None], p_le[None])[0]  # (n_ring, G)
-    asis = log_mean_exp(base, axis=-1)
+    alternative per outlet, largest gain first.
+
+    Vectorised over outlets: for every candidate outlet and alternative, the excess is averaged
+    over its uniform prior grid and the outlet's position over the t grid, the rest of its
+    likelihood (its spurs) kept as it is, and the ring's scatter re-weighed over its grid (an
+    outlet explained by a fault no longer makes the whole ring look noisy).
+    """
+    p_ln, p_le = fit.pred_ln[::LOCAL_THIN], fit.pred_le[::LOCAL_THIN]
+    sd = CONTACT_SD_OHM[:, None, None]
+    base = outlet_loglik(prep, p_ln[None], p_le[None], None)[:, 0]  # (S, n_ring, G)
+    asis = log_mean_exp(base, axis=-1)  # (S, n_ring)
+    cons = fit.scatter_cons if fit.scatter_cons is not None else LOG_CONTACT_PRIOR
+    total = asis.sum(axis=1) + cons  # (S,)
+    total_all = float(log_mean_exp(total) + np.log(total.size))
+    ln, le = prep.ln_ohm, prep.le_ohm
     found: list[LocalFault] = []
     for i, oid in enumerate(prep.ring_ids):
-        ln, le = prep.ln_ohm[i], prep.le_ohm[i]
-        ol = _ol_faults(oid, ln, le)
-        if ol is not None:
-            if ol.gain > 0:
-                found.append(ol)
-            continue
-        if np.isnan(ln) and np.isnan(le):
-            continue
-        own = reading_loglik(ln, p_ln) + reading_loglik(le, p_le)
-        rest = (base[i] - own)[:, None]  # (G, 1)
-        # No alternative can beat "as recorded" when the readings already sit on the model:
-        # its evidence is at most max(rest) + the best possible fit of the two readings.
-        ceiling = float(rest.max()) + _best_fit(ln) + _best_fit(le)
-        if ceiling + np.log(max(LOCAL_PRIORS.values())) < float(asis[i]):
-            continue
-        best: LocalFault | None = None
-        options = (
-            ("unrecorded_spur", None, 2.0, 1.0 + prep.ratio_e, SPUR_RANGE_OHM),
-            ("high_resistance_joint", "line", 1.0, 1.0, JOINT_RANGE_OHM),
-            ("high_resistance_joint", "neutral", 1.0, 0.0, JOINT_RANGE_OHM),
-            ("high_resistance_joint", "cpc", 0.0, 1.0, JOINT_RANGE_OHM),
-        )
-        for code, conductor, a_ln, a_le, (r_lo, r_hi) in options:
-            if (a_ln == 0 and np.isnan(le)) or (a_le == 0 and np.isnan(ln)):
-                continue
-            r = np.linspace(r_lo, r_hi, R_POINTS)[None, :]  # uniform prior over (r_lo, r_hi)
-            alt = (reading_loglik(ln, p_ln[:, None] + a_ln * r)
-                   + reading_loglik(le, p_le[:, None] + a_le * r))  # (G, R)
-            joint_ll = rest + alt
-            evidence = float(log_mean_exp(joint_ll.ravel()))
-            gain = evidence - float(asis[i]) + np.log(LOCAL_PRIORS[code])
-            if gain > 0 and (best is None or gain > best.gain):
-                w = np.exp(joint_ll - joint_ll.max())
-                r_est = float(np.sum(w * r) / np.sum(w))
-                best = LocalFault(oid, code, conductor, gain, r_est)
-        if best is not None:
-            found.append(best)
+        ol = _ol_faults(oid, ln[i], le[i])
+        if ol is not None and ol.gain > 0:
+            found.append(ol)
+    own = (reading_loglik(ln[None, :, None], p_ln[None, None, :], sd)
+           + reading_loglik(le[None, :, None], p_le[None, None, :], sd))
+    rest = base - own  # (S, n_ring, G): the outlet's spurs
+    # No alternative can beat "as recorded" when the readings already sit on the model:
+    # its evidence is at most max(rest) + the best possible fit of the two readings.
+    sd2 = CONTACT_SD_OHM[:, None]
+    ceiling = rest.max(axis=-1) + _best_fit(ln[None, :], sd2) + _best_fit(le[None, :], sd2)
+    opts = _options(prep)
+    top_prior = np.max([o[5] for o in opts], axis=0)
+    finite_pair = ~np.isinf(ln) & ~np.isinf(le) & ~(np.isnan(ln) & np.isnan(le))
+    hopeful = np.any(ceiling + top_prior[None, :] >= asis, axis=0)
+    idx = np.flatnonzero(finite_pair & hopeful)
+    if idx.size:
+        best_gain = np.full(idx.size, 0.0)
+        best: list[LocalFault | None] = [None] * idx.size
+        x_ln, x_le = ln[idx][None, :, None, None], le[idx][None, :, None, None]
+        sd4 = CONTACT_SD_OHM[:, None, None, None]
+        for code, conductor, a_ln, a_le, (r_lo, r_hi), log_prior in opts:
+            r = np.linspace(r_lo, r_hi, R_POINTS)  # uniform prior over the range
+            alt = (reading_loglik(x_ln, p_ln[None, None, :, None] + a_ln * r, sd4)
+                   + reading_loglik(x_le, p_le[None, None, :, None] + a_le * r, sd4))
+            joint_ll = rest[:, idx][..., None] + alt  # (S, k, G, R)
+            evidence = log_mean_exp(joint_ll.reshape(*joint_ll.shape[:2], -1), axis=-1)
+            new_total = total[:, None] - asis[:, idx] + evidence  # (S, k)
+            gain = (log_mean_exp(new_total, axis=0) + np.log(total.size) - total_all
+                    + log_prior[idx])
+            # an alternative that only moves a reading not taken explains nothing
+            useless = (np.isnan(ln[idx]) if a_le == 0 else False) | (
+                np.isnan(le[idx]) if a_ln == 0 else False)
+            gain = np.where(useless, -np.inf, gain)
+            w = np.exp(joint_ll - joint_ll.max(axis=(0, 2, 3), keepdims=True)).sum(axis=(0, 2))
+            r_est = (w * r).sum(axis=-1) / w.sum(axis=-1)
+            for j in np.flatnonzero(gain > best_gain):
+                best_gain[j] = gain[j]
+                best[j] = LocalFault(prep.ring_ids[idx[j]], code, conductor, float(gain[j]),
+                                     float(r_est[j]))
+        found.extend(b for b in best if b is not None)
     for j, oid in enumerate(prep.child_ids):
         ol = _ol_faults(oid, prep.child_ln_ohm[j], prep.child_le_ohm[j])
         if ol is not None and ol.gain > 0:

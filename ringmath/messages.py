@@ -15,6 +15,10 @@ CAUTIONS = (
     "Every reading and every result must be verified by the person responsible for the test.",
 )
 
+#: The one set of words for the verdicts, used by every screen, the sheet and the JSON.
+VERDICT_WORDS = {"satisfactory": "Satisfactory", "investigate": "Investigate",
+                 "retest": "Re-test", "incomplete": "Incomplete"}
+
 _NAMES = {"line": "line", "neutral": "neutral", "cpc": "cpc (earth)"}
 _STEP_NAMES = {"ln": "step 2 (L–N)", "le": "step 3 (L–CPC)"}
 _STEP_JOINS = {"ln": ("L1 to N2 and L2 to N1", "L1 to N1 and L2 to N2"),
@@ -70,12 +74,14 @@ def joint(conductor: str, r_ohm: float, near: list[str], located: bool,
     """Message and next check for a high-resistance joint."""
     name = _NAMES[conductor]
     if at_outlet:
-        msg = (f"At {_list(near)} the readings are about {r_ohm:.2f} Ω higher than the ring "
-               f"predicts, in the {name} only: a poor {name} connection at that outlet.")
+        msg = (f"At {_list(near)} the readings imply about {r_ohm:.2f} Ω more than the ring "
+               f"predicts, in the {name} only (inferred): a poor {name} connection at that "
+               "outlet, or its socket contacts if the readings were taken at the front.")
         nxt = f"Isolate, open {_list(near)} and remake the {name} termination; re-measure."
         return msg, nxt
     msg = (f"The {name} conductor reads about {r_ohm:.2f} Ω more end to end than the other "
-           "conductors imply: a loose or poor joint in the ring, which can overheat in use.")
+           "conductors imply (inferred from r1, rn and r2): a loose or poor joint in the ring, "
+           "which can overheat in use.")
     if located and near:
         msg += f" It is most likely at or next to {_list(near)}."
         nxt = (f"Check and remake the {name} terminations at {_list(near)}, then repeat step 1: "
@@ -96,11 +102,19 @@ def wrong_cross(step: str) -> tuple[str, str]:
     return msg, nxt
 
 
-def unrecorded_spur(outlet: str, excess_ohm: float) -> tuple[str, str]:
-    """Message and next check for an outlet that seems to be on a spur not recorded."""
-    msg = (f"{outlet} reads about {excess_ohm:.2f} Ω more in step 2 than a ring outlet should, "
-           "and more again in step 3, in the proportion a length of spur cable gives: it is "
-           "probably on a spur that is not recorded.")
+def unrecorded_spur(outlet: str, excess_ohm: float, has_ln: bool = True,
+                    has_le: bool = True) -> tuple[str, str]:
+    """Message and next check for an outlet that seems to be on a spur not recorded.
+    ``excess_ohm`` is the inferred step 2 excess; only the steps taken are described as read."""
+    if has_ln and has_le:
+        read = (f"{outlet} reads about {excess_ohm:.2f} Ω more in step 2 than a ring outlet "
+                "should (inferred from the fit), and more again in step 3, in the proportion a "
+                "length of spur cable gives")
+    else:
+        step = "step 2" if has_ln else "step 3"
+        read = (f"{outlet} reads higher in {step} than a ring outlet should ({step} only was "
+                "taken there, so the spur is inferred from one reading)")
+    msg = read + ": it is probably on a spur that is not recorded."
     nxt = (f"Open {outlet} and count the cables: a single cable means a spur. Record it as a "
            "spur from the point that feeds it (an outlet or a junction box).")
     return msg, nxt
@@ -155,6 +169,12 @@ def headline(code: str, conductor: str | None = None, step: str | None = None,
         return f"Terminals look swapped{where}."
     if code == "zs_over_limit":
         return f"Zs is over the limit{where}."
+    if code == "setup_socket_contacts":
+        return f"Socket contacts read high{where}: re-measure at the terminals."
+    if code in ("setup_lead_offset", "setup_lead_offset_step"):
+        return "The readings look offset: null the leads and re-take them."
+    if code in ("setup_instrument", "setup_readings_inconsistent"):
+        return "These readings cannot all be true: check the test set-up or the instrument."
     return "A fault needs checking."
 
 

@@ -2,9 +2,26 @@
 
 from __future__ import annotations
 
-from marshmallow import EXCLUDE, Schema, fields, validate
+from marshmallow import EXCLUDE, Schema, ValidationError, fields, validate
 
-from fieldapp.changes import CLIENT_ID_PATTERN, READING_FIELDS
+from fieldapp.changes import CLIENT_ID_PATTERN, LIVE_OUTLET_READINGS, READING_FIELDS
+from fieldapp.limits import MAX_READING_CHARS
+
+
+def _reading_shape(value) -> None:
+    """Text or a number a float can hold (ringmath judges the value itself)."""
+    if value is None:
+        return
+    if isinstance(value, str):
+        if len(value) > MAX_READING_CHARS:
+            raise ValidationError(f"at most {MAX_READING_CHARS} characters")
+        return
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        raise ValidationError("expected a number of ohms or OL")
+    try:
+        float(value)
+    except OverflowError:
+        raise ValidationError("not a number a meter shows") from None
 
 
 class ReadingIn(Schema):
@@ -17,9 +34,10 @@ class ReadingIn(Schema):
     class Meta:
         unknown = EXCLUDE  # a newer client may send more; what we know is checked strictly
 
-    step = fields.String(required=True, validate=validate.OneOf(READING_FIELDS))
+    step = fields.String(required=True,
+                         validate=validate.OneOf(READING_FIELDS + LIVE_OUTLET_READINGS))
     outlet = fields.String(load_default=None, allow_none=True, validate=validate.Length(max=16))
-    value = fields.Raw(required=True, allow_none=True)
+    value = fields.Raw(required=True, allow_none=True, validate=_reading_shape)
     client_id = fields.String(required=True, validate=validate.Regexp(
         CLIENT_ID_PATTERN, error="expected 8 to 64 letters, digits, '-' or '_'"))
     device = fields.String(load_default="", validate=validate.Length(max=200))

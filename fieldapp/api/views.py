@@ -18,6 +18,7 @@ from fieldapp.api import bp
 from fieldapp.api.schemas import CircuitOut, ReadingIn, ReadingOut
 from fieldapp.auth.roles import TESTING_ROLES
 from fieldapp.extensions import db
+from fieldapp.live.api import post_live_reading
 from fieldapp.models import Circuit
 from fieldapp.records import circuit_record, diagnose_circuit
 from fieldapp.ringtest import answer
@@ -66,6 +67,8 @@ def post_reading(circuit_id: int):
         data = ReadingIn().load(body)
     except ValidationError as error:
         return jsonify({"errors": error.messages}), 400
+    if data["step"] in changes.LIVE_OUTLET_READINGS:
+        return post_live_reading(circuit, data)
     outlet = (readings.find_outlet(circuit, data["outlet"])
               if data["step"] in changes.OUTLET_READINGS else None)
     try:
@@ -78,7 +81,12 @@ def post_reading(circuit_id: int):
         body = {"errors": {bad.field: [bad.message]}, "kind": bad.kind}
         if bad.slip is not None:
             body["slip"] = {"typed": bad.slip.typed, "suggested": bad.slip.suggested,
+                            "expected_ohm": bad.slip.expected_ohm,
                             "question": bad.slip.question}
+            body["html"] = {"slip": render_template(
+                "ringtest/_slip.html", slip=bad.slip, circuit_id=circuit.id,
+                field=data["step"], key=data["outlet"] if outlet is not None else None,
+                client_id=data["client_id"])}
         return jsonify(body), 422 if bad.slip is not None else 400
     return jsonify(ReadingOut().dump(_reading_reply(circuit, data, result))), 200
 

@@ -39,3 +39,24 @@ def can_review(user=None) -> bool:
     """True when the user may review and approve jobs."""
     user = current_user if user is None else user
     return bool(getattr(user, "is_authenticated", False)) and user.role in REVIEW_ROLES
+
+
+def may_assign_tester(user, job) -> bool:
+    """Who may change who tested a job: its tester or a supervisor (while no tester is set,
+    the person who created the job)."""
+    if user.role in REVIEW_ROLES:
+        return True
+    if job.tester_id is None:
+        return job.created_by in (None, user.id)
+    return job.tester_id == user.id
+
+
+def may_submit(user, job) -> bool:
+    """Who may submit a job for review: its tester, a supervisor, and for an apprentice's job
+    (the apprentice is its tester) also the tester the apprentice works under."""
+    if user.role in REVIEW_ROLES or job.tester_id == user.id:
+        return True
+    if job.tester_id is None:
+        return job.created_by == user.id
+    tester = job.tester
+    return tester is not None and tester.role == "apprentice" and tester.mentor_id == user.id

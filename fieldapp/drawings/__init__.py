@@ -15,13 +15,14 @@ drawing), ``ring`` (the ring picture), ``plot`` (the readings plot).
 """
 
 from fieldapp.drawings.connections import connection_diagram
-from fieldapp.drawings.key import KIND_WORDS
-from fieldapp.drawings.layout import point_numbers, ring_positions
+from fieldapp.drawings.layout import order_known, point_names, point_numbers, ring_positions
 from fieldapp.drawings.plot import readings_plot
 from fieldapp.drawings.ring import FAULT_WORDS, ring_picture
 from fieldapp.drawings.svg import ALERT, BAND_FILL, CORES, INK, MUTED, WIDTH
+from fieldapp.labels import KIND_WORDS
 
 __all__ = [
     "ALERT", "BAND_FILL", "CORES", "FAULT_WORDS", "INK", "KIND_WORDS", "MUTED", "WIDTH",
-    "connection_diagram", "point_numbers", "readings_plot", "ring_picture", "ring_positions",
+    "connection_diagram", "order_known", "point_names", "point_numbers", "readings_plot",
+    "ring_picture", "ring_positions",
 ]

@@ -23,6 +23,7 @@ from fieldapp.drawings.svg import (
     _text,
     _wrapped,
 )
+from ringmath.conductors import cpc_ratio
 
 _ROWS = {"L": 78, "N": 128, "CPC": 178}
 _LEFT_TERMINAL = 112
@@ -38,7 +39,7 @@ _STEPS = {
             "2. N1 to N2: rn (neutral)",
             "3. CPC1 to CPC2: r2 (cpc)",
             "r1 and rn should match within about 0.05 Ω; for 2.5/1.5 mm² cable r2 is "
-            "about 1.67 × r1.",
+            f"about {cpc_ratio(2.5, 1.5):.2f} × r1.",
         ],
         "outlet": None,
     },

@@ -7,21 +7,16 @@ from __future__ import annotations
 
 from fieldapp.drawings.layout import _finite, _label
 from fieldapp.drawings.svg import ALERT, INK, MUTED, _circle, _el, _esc, _polygon, _text
+from fieldapp.labels import fed_from, kind_label, outlet_name
 
 _NODE = 10.0
 
-KIND_WORDS = {
-    "twin_socket": "twin socket",
-    "single_socket": "single socket",
-    "fcu": "FCU",
-    "junction_box": "junction box",
-    "fixed_equipment": "fixed equipment",
-}
 
 
-def _node(x: float, y: float, kind: str, number: int, label: str) -> str:
-    """A point's symbol with its number inside: circle socket, square FCU, diamond junction box,
-    rounded square fixed equipment."""
+def _node(x: float, y: float, kind: str, name, label: str) -> str:
+    """A point's symbol with its short name inside (the outlet's id, ``fieldapp.labels``):
+    circle socket, square FCU, diamond junction box, rounded square fixed equipment. A name
+    longer than three characters is cut with "…" inside the symbol; the key gives it whole."""
     s = _NODE
     if kind == "fcu":
         shape = _el("rect", x=x - s, y=y - s, width=2 * s, height=2 * s, fill="#ffffff",
@@ -33,8 +28,11 @@ def _node(x: float, y: float, kind: str, number: int, label: str) -> str:
                     fill="#ffffff", stroke=INK, stroke_width=1.5)
     else:
         shape = _circle(x, y, s)
+    name = str(name)
+    size = 11 if len(name) <= 2 else 9 if len(name) == 3 else 8
+    inside = name if len(name) <= 3 else name[:2] + "…"
     return "<g>" + _el("title", _esc(label)) + shape + _text(
-        x, y + 4, number, size=11, anchor="middle", weight="bold") + "</g>"
+        x, y + size / 3 + 0.5, inside, size=size, anchor="middle", weight="bold") + "</g>"
 
 
 def _halo(x: float, y: float) -> str:
@@ -50,13 +48,13 @@ def _zs_badge(x: float, y: float) -> str:
             + _text(tx, ty + 4, "!", size=10, anchor="middle", weight="bold", fill=ALERT))
 
 
-def _point_notes(point: dict, numbers: dict[str, int], suspects: set[str]) -> list[str]:
-    notes = [KIND_WORDS.get(point.get("kind"), str(point.get("kind") or "outlet"))]
+def _point_notes(point: dict, numbers: dict[str, str], suspects: set[str]) -> list[str]:
+    notes = [kind_label(point.get("kind"), short=True)]
     if point.get("kind") == "fcu" and _finite(point.get("fuse_a")) is not None:
         notes[-1] += f" {point['fuse_a']:g} A"
     parent = point.get("spur_from")
     if parent:
-        notes.append(f"spur off {numbers.get(str(parent), parent)}")
+        notes.append(fed_from(numbers.get(str(parent), parent)))
     protected = str(point.get("protected_by") or "")
     if protected.startswith("fcu:"):
         fcu = protected[4:]
@@ -65,16 +63,18 @@ def _point_notes(point: dict, numbers: dict[str, int], suspects: set[str]) -> li
         zs, limit = _finite(point.get("zs_ohm")), _finite(point.get("zs_max_ohm"))
         if zs is not None and limit is not None:
             notes.append(f"Zs {zs:.2f} Ω over limit {limit:.2f} Ω")
+        elif point.get("le_ohm") == "OL":
+            notes.append("Zs fails: no earth path proved (step 3 OL)")
         else:
-            notes.append("Zs over limit")
+            notes.append("Zs fails")
     if str(point.get("id")) in suspects:
         notes.append("suspect")
     return notes
 
 
-def _key(points: list[dict], numbers: dict[str, int], suspects: set[str], y: float,
+def _key(points: list[dict], numbers: dict[str, str], suspects: set[str], y: float,
          with_notes: bool = True) -> tuple[list[str], float]:
-    """The key under a drawing: each point's symbol and number, its full label and notes."""
+    """The key under a drawing: each point's symbol and name, its full name and notes."""
     out = []
     for point in points:
         oid = str(point.get("id"))
@@ -84,7 +84,8 @@ def _key(points: list[dict], numbers: dict[str, int], suspects: set[str], y: flo
             out.append(_halo(20, y))
         if point.get("ok") is False:
             out.append(_zs_badge(20, y))
-        out.append(_text(42, y + 4, label, size=12, weight="bold"))
+        out.append(_text(42, y + 4, label, size=12, weight="bold", title=outlet_name(
+            numbers[oid], label)))
         if with_notes:
             out.append(_text(42, y + 19, " · ".join(_point_notes(point, numbers, suspects)),
                              size=11, fill=MUTED))

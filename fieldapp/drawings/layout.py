@@ -24,15 +24,30 @@ def _points_in_order(diagnosis: dict) -> tuple[list[dict], list[dict]]:
     return ordered, spurs
 
 
-def _number_map(ring: list[dict], spurs: list[dict]) -> dict[str, int]:
-    """The number each point carries in every drawing: ring order first, then spurs."""
-    return {str(p.get("id")): i for i, p in enumerate(ring + spurs, start=1)}
+def _number_map(ring: list[dict], spurs: list[dict]) -> dict[str, str]:
+    """The short name each point carries in every drawing: its id, the name every screen and
+    table uses for it (``fieldapp.labels``)."""
+    return {str(p.get("id")): str(p.get("id")) for p in ring + spurs}
+
+
+def point_names(diagnosis: dict) -> dict[str, str]:
+    """The short name each point of a diagnosis carries in the ring picture and the readings
+    plot (by point id), for a table printed beside them."""
+    return _number_map(*_points_in_order(diagnosis))
 
 
 def point_numbers(diagnosis: dict) -> dict[str, int]:
-    """The number each point of a diagnosis carries in the ring picture and the readings plot
-    (by point id), so a table printed beside them can use the same numbers."""
-    return _number_map(*_points_in_order(diagnosis))
+    """Points numbered 1, 2, ... in ring order, then spurs (kept for the job sheet's "No."
+    column until it prints ``point_names``; the drawings themselves carry the names)."""
+    ring, spurs = _points_in_order(diagnosis)
+    return {str(p.get("id")): i for i, p in enumerate(ring + spurs, start=1)}
+
+
+def order_known(diagnosis: dict) -> bool:
+    """True when the readings place the ring points (any point has a ``position``); else
+    the drawings show them in the order they were entered."""
+    ring, _ = _points_in_order(diagnosis)
+    return any(_finite(p.get("position")) is not None for p in ring)
 
 
 def _label(point: dict) -> str:

@@ -15,6 +15,7 @@ from fieldapp.drawings.svg import (
     BAND_FILL,
     INK,
     MUTED,
+    RESULT_NOTE,
     WIDTH,
     _circle,
     _el,
@@ -25,6 +26,7 @@ from fieldapp.drawings.svg import (
     _text,
     _wrapped,
 )
+from fieldapp.labels import reading_name
 
 _PLOT_LEFT, _PLOT_RIGHT = 50.0, WIDTH - 12.0
 _PANEL_HEIGHT = 130.0
@@ -60,20 +62,21 @@ def _reading_ranges(diagnosis: dict, step: str) -> dict[str, tuple[float, float]
     return out
 
 
-def _verdict(value, band: tuple[float, float] | None) -> str:
-    """ "open", "high", "low", "ok", "unknown" (no range to judge by) or "missing"."""
+def _statuses(diagnosis: dict, step: str) -> dict[str, str]:
+    """Each outlet's status for one step as ringmath judged it (``readings[].status``)."""
+    return {str(e["outlet"]): str(e.get("status") or "pending")
+            for e in diagnosis.get("readings") or []
+            if isinstance(e, dict) and e.get("step") == step and e.get("outlet") is not None}
+
+
+def _verdict(value, status: str | None) -> str:
+    """The mark to draw: "open" (OL), "high", "low", "ok" as ringmath judged the reading,
+    "unknown" (taken, nothing to judge it by yet) or "missing" (not taken)."""
     if isinstance(value, str) and value.strip().upper() == "OL":
         return "open"
-    number = _finite(value)
-    if number is None:
+    if _finite(value) is None:
         return "open" if isinstance(value, float) and math.isinf(value) else "missing"
-    if band is None:
-        return "unknown"
-    if number > band[1]:
-        return "high"
-    if number < band[0]:
-        return "low"
-    return "ok"
+    return status if status in ("ok", "high", "low") else "unknown"
 
 
 def _ohms(value: float) -> str:
@@ -81,19 +84,20 @@ def _ohms(value: float) -> str:
 
 
 def _panel(diagnosis: dict, step: str, top: float, ring: list[dict], spurs: list[dict],
-           numbers: dict[str, int]) -> list[str]:
+           numbers: dict[str, str]) -> list[str]:
     """One step's panel: band, expected line, a marker per outlet, axes in ohms."""
-    field, name = ("ln_ohm", "L–N") if step == "ln" else ("le_ohm", "L–CPC")
+    field, name = f"{step}_ohm", reading_name(step)
     expected = diagnosis.get("expected") or {}
     band = _band(expected.get(f"{step}_band_ohm"))
     centre = _finite(expected.get(field))
     ranges = _reading_ranges(diagnosis, step)
+    statuses = _statuses(diagnosis, step)
     points = ring + spurs
     judged = []
     for p in points:
         oid = str(p.get("id"))
         own = band if not p.get("spur_from") and band else ranges.get(oid)
-        judged.append((p, own, _verdict(p.get(field), own)))
+        judged.append((p, own, _verdict(p.get(field), statuses.get(oid))))
 
     scale_values = [v for v in (_finite(p.get(field)) for p in points) if v is not None]
     references = [v for b in [band, *ranges.values()] if b for v in b]
@@ -225,7 +229,6 @@ def readings_plot(diagnosis: dict) -> Markup:
         y += 15
     key, y = _key(ring + spurs, numbers, set(), y + 14, with_notes=False)
     body += key
-    lines, y = _wrapped(8, y, "Advice only: readings must be verified by a competent person; "
-                        "BS 7671 and local rules prevail.", 56, size=11, fill=MUTED)
+    lines, y = _wrapped(8, y, RESULT_NOTE, 56, size=11, fill=MUTED)
     body += lines
     return _svg(y + 4, "Step 2 and step 3 readings against the expected range", body)

@@ -15,13 +15,14 @@ from fieldapp.drawings.layout import (
     _label,
     _number_map,
     _points_in_order,
+    order_known,
     ring_positions,
 )
 from fieldapp.drawings.svg import (
     ALERT,
     INK,
-    ISOLATION_NOTE,
     MUTED,
+    RESULT_NOTE,
     WIDTH,
     _circle,
     _el,
@@ -171,7 +172,7 @@ def ring_picture(diagnosis: dict, *, key: bool = True) -> Markup:
     end 1 (left) to end 2 (right), spurs branching inward from their parent, FCUs as squares,
     points over their Zs limit with a warning triangle, and the first fault finding drawn on
     it (a chord across a bridged section, a cross at a break or joint, dashed halos round the
-    outlets it names). A numbered key underneath gives every label in full and the fault in
+    outlets it names). A key underneath gives every point's name and label in full and the fault in
     words; ``key=False`` leaves both out, for a page that lists the points and findings itself.
     """
     ring, spurs = _points_in_order(diagnosis)
@@ -229,8 +230,14 @@ def ring_picture(diagnosis: dict, *, key: bool = True) -> Markup:
     if key:
         rows, y = _key(ring + spurs, numbers, suspects, y + 6)
         body += rows
-    lines, y = _wrapped(12, y + 2, "Layout inferred from the readings, not surveyed: verify on "
-                        "site. " + ISOLATION_NOTE, 56, size=11, fill=MUTED)
+    if order_known(diagnosis):
+        title = "Ring layout inferred from the readings"
+        note = "Layout inferred from the readings, not surveyed: verify on site."
+    else:
+        title = "Ring outlets in the order as entered"
+        note = ("Order as entered: these readings cannot tell where each outlet is on the "
+                "ring (a sound ring reads alike all round). Not surveyed.")
+    lines, y = _wrapped(12, y + 2, f"{note} {RESULT_NOTE}", 56, size=11, fill=MUTED)
     body += lines
-    return _svg(y + 4, "Ring layout inferred from the readings", body)
+    return _svg(y + 4, title, body)
 

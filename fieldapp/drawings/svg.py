@@ -12,6 +12,8 @@ from html import escape
 
 from markupsafe import Markup
 
+from ringmath.messages import CAUTIONS
+
 WIDTH = 360
 FONT = "DejaVu Sans, Arial, Helvetica, sans-serif"
 INK = "#1a1a1a"
@@ -28,10 +30,10 @@ CORES = {
 }
 
 
-ISOLATION_NOTE = (
-    "Only on a circuit that is safely isolated, locked off and proved dead. "
-    "Readings must be verified by a competent person; BS 7671 and local rules prevail."
-)
+#: The cautions a drawing carries: the core's own words (safe isolation on the connection
+#: drawings; verification and the standard's precedence under results).
+ISOLATION_NOTE = CAUTIONS[0]
+RESULT_NOTE = f"{CAUTIONS[3]} {CAUTIONS[2]}"
 
 
 

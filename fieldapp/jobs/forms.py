@@ -13,6 +13,7 @@ from wtforms import (
 )
 from wtforms.validators import DataRequired, Length, NumberRange, Optional
 
+from fieldapp.live.forms import ScheduleFields, schedule_data
 from fieldapp.web import options
 from ringmath.record import EARTHING_SYSTEMS, ZE_SOURCES
 
@@ -42,10 +43,15 @@ class JobForm(FlaskForm):
     date = DateField("Test date", validators=[Optional()])
     tester_id = SelectField("Tester", coerce=int, validators=[Optional()])
     notes = TextAreaField("Notes", validators=[Optional(), Length(max=4000)])
+    instrument_model = StringField(
+        "Test instrument", validators=[Optional(), Length(max=80)],
+        description="Make and model as on the instrument; printed on the job sheet")
+    instrument_serial = StringField("Instrument serial number",
+                                    validators=[Optional(), Length(max=60)])
     submit = SubmitField("Save job")
 
 
-class CircuitForm(FlaskForm):
+class CircuitForm(ScheduleFields, FlaskForm):
     board = StringField("Board", default="DB1", validators=[DataRequired(), Length(max=40)])
     way = StringField("Way", validators=[DataRequired(), Length(max=20)],
                       description="The circuit's number on the board, e.g. 3")
@@ -84,7 +90,10 @@ class CircuitForm(FlaskForm):
         if self.rcd_type.data and not self.rcd_rated_ma.data:
             self.rcd_type.errors.append("Choose the RCD's rating, or “—” for no RCD.")
             ok = False
-        return ok
+        rcd = ({"rated_ma": float(self.rcd_rated_ma.data), "type": self.rcd_type.data or None}
+               if self.rcd_rated_ma.data else None)
+        self.schedule = self.schedule_values(rcd) if ok else None
+        return ok and self.schedule is not None
 
     def values(self) -> dict:
         """The circuit columns from the submitted form."""
@@ -99,6 +108,7 @@ class CircuitForm(FlaskForm):
             "cpc_csa_mm2": float(self.cpc_csa_mm2.data),
             "ze_ohm": self.ze_ohm.data, "ze_source": self.ze_source.data,
             "earthing": self.earthing.data, "cable_length_m": self.cable_length_m.data,
+            **(self.schedule or {}),
         }
 
 
@@ -114,10 +124,12 @@ def circuit_form_data(circuit) -> dict:
         "rcd_type": circuit.rcd_type or "", "live_csa_mm2": g(circuit.live_csa_mm2),
         "cpc_csa_mm2": g(circuit.cpc_csa_mm2), "ze_ohm": circuit.ze_ohm,
         "ze_source": circuit.ze_source, "earthing": circuit.earthing or "TN-C-S",
-        "cable_length_m": circuit.cable_length_m,
+        "cable_length_m": circuit.cable_length_m, **schedule_data(circuit),
     }
 
 
 class SubmitJobForm(FlaskForm):
+    reason = TextAreaField("Why submit it with these problems", validators=[
+        Optional(), Length(max=2000)])
     submit = SubmitField("Submit for review")
 

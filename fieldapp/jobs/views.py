@@ -8,13 +8,20 @@ from flask import abort, flash, redirect, render_template, request, url_for
 from flask_login import current_user, login_required
 from sqlalchemy import func, select
 
-from fieldapp import changes
-from fieldapp.auth.roles import TESTING_ROLES, role_required
+from fieldapp import changes, limits
+from fieldapp.auth.roles import (
+    REVIEW_ROLES,
+    TESTING_ROLES,
+    may_assign_tester,
+    may_submit,
+    role_required,
+)
 from fieldapp.extensions import db
 from fieldapp.jobs import bp
 from fieldapp.jobs.forms import CircuitForm, JobForm, SubmitJobForm, circuit_form_data
 from fieldapp.models import Circuit, Job, User, utcnow
 from fieldapp.web import actor, get_or_404, options
+from ringmath.messages import CAUTIONS
 
 
 def _tester_choices() -> list:
@@ -37,6 +44,8 @@ def _job_values(form: JobForm) -> dict:
         "reference": form.reference.data.strip(), "site": form.site.data.strip(),
         "client": (form.client.data or "").strip(), "date": form.date.data,
         "tester_id": form.tester_id.data or None, "notes": (form.notes.data or "").strip(),
+        "instrument_model": (form.instrument_model.data or "").strip() or None,
+        "instrument_serial": (form.instrument_serial.data or "").strip() or None,
     }
 
 
@@ -106,7 +115,7 @@ def detail(job_id: int):
 
 
 @bp.route("/<int:job_id>/edit", methods=["GET", "POST"])
-@role_required(*TESTING_ROLES)
+@role_required(*TESTING_ROLES, *REVIEW_ROLES)
 def edit(job_id: int):
     job = get_or_404(Job, job_id)
     locked = _refuse_locked(job)
@@ -116,7 +125,8 @@ def edit(job_id: int):
     form.tester_id.choices = _tester_choices()
     if request.method == "GET":
         form.tester_id.data = job.tester_id or 0
-    if form.validate_on_submit() and not _reference_taken(form, job):
+    if form.validate_on_submit() and not _reference_taken(form, job) and not _tester_refused(
+            form, job):
         changed = changes.update(job, _job_values(form), actor())
         db.session.commit()
         flash("Job saved." if changed else "Nothing changed.", "ok")
@@ -124,12 +134,21 @@ def edit(job_id: int):
     return render_template("jobs/job_form.html", form=form, job=job), _status()
 
 
+def _tester_refused(form: JobForm, job: Job) -> bool:
+    """Only the job's tester or a supervisor changes who tested it (README, ownership)."""
+    if (form.tester_id.data or None) != job.tester_id and not may_assign_tester(
+            current_user, job):
+        form.tester_id.errors.append("Only the job's tester or a supervisor can change this.")
+        return True
+    return False
+
+
 @bp.post("/<int:job_id>/submit")
-@role_required(*TESTING_ROLES)
+@role_required(*TESTING_ROLES, *REVIEW_ROLES)
 def submit(job_id: int):
     job = get_or_404(Job, job_id)
-    if job.tester_id not in (None, current_user.id):
-        abort(403)  # the job's own tester submits it (and gets it back when it is returned)
+    if not may_submit(current_user, job):
+        abort(403)  # the job's tester (for an apprentice: also their tester) or a supervisor
     locked = _refuse_locked(job)
     if locked:
         return locked
@@ -137,10 +156,23 @@ def submit(job_id: int):
     if form.validate_on_submit():
         if not job.circuits:
             flash("Add and test at least one circuit before submitting.", "error")
-        else:
-            changes.update(job, {"status": "submitted", "submitted_at": utcnow()}, actor())
-            db.session.commit()
-            flash(f"Job {job.reference} submitted for review.", "ok")
+            return redirect(url_for("jobs.detail", job_id=job.id))
+        # a job with problems (fieldapp/review/gate.py) goes on only with a typed reason;
+        # imported here: the review package imports the transfer one, which imports jobs
+        from fieldapp.review.forms import REASON_NEEDED
+        from fieldapp.review.signoff import sign_off
+
+        problems, done = sign_off(job, "submit", {"status": "submitted",
+                                                  "submitted_at": utcnow()},
+                                  form.reason.data, actor())
+        if not done:
+            if request.form.get("reason") is not None:
+                form.reason.errors = [REASON_NEEDED]
+            return render_template("review/signoff.html", job=job, form=form,
+                                   problems=problems, cautions=CAUTIONS), 422
+        db.session.commit()
+        flash(f"Job {job.reference} submitted for review"
+              f"{' with the reason given' if problems else ''}.", "ok")
     return redirect(url_for("jobs.detail", job_id=job.id))
 
 
@@ -151,6 +183,10 @@ def new_circuit(job_id: int):
     locked = _refuse_locked(job)
     if locked:
         return locked
+    if len(job.circuits) >= limits.MAX_CIRCUITS_PER_JOB:
+        flash(f"A job holds at most {limits.MAX_CIRCUITS_PER_JOB} circuits: start another "
+              "job for the rest of the installation.", "error")
+        return redirect(url_for("jobs.detail", job_id=job.id))
     form = CircuitForm()
     if request.method == "GET" and job.circuits:
         last = job.circuits[-1]  # the next circuit is usually on the same board

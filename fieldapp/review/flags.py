@@ -1,34 +1,38 @@
-"""What the supervisor's job list shows at a glance, from the circuits' diagnoses."""
+"""What the supervisor's job list shows at a glance: the sign-off problems of each job
+(fieldapp/review/gate.py) counted by kind, and whether someone went on despite them."""
 
 from __future__ import annotations
 
+from fieldapp.review.gate import CircuitProblems
 
-def job_flags(diagnoses: list, problems: list) -> dict:
-    """Flags for one job from its circuits' ``ringmath.diagnose`` results (None: not assessed).
 
-    faults: findings of severity "fault" other than Zs (codes, each once, in order found);
-    zs_over: some point or the circuit is over its Zs limit;
-    missing: readings still due, plus circuits that could not be assessed (no circuits at all
-    counts as one missing step).
+def job_flags(groups: list[CircuitProblems], submit_reason: str | None = None,
+              approve_reason: str | None = None) -> dict:
+    """Flags for one job from its problems.
+
+    faults: per circuit not satisfactory or not assessed, its assessment in words;
+    findings: how many fault and check findings they carry; zs_fail / zs_unproved: outlets
+    whose Zs fails / is not proved; missing: readings (or whole steps) still due; safety:
+    circuits whose safe isolation is not confirmed; despite: "submitted" / "approved" when a
+    reason was given to go on with problems; all_clear: no problem at all.
     """
-    faults: list[str] = []
-    zs_over = False
-    missing = 0 if diagnoses else 1
-    for diagnosis, _problem in zip(diagnoses, problems, strict=True):
-        if diagnosis is None:
-            missing += 1
-            continue
-        for finding in diagnosis.get("findings") or []:
-            if finding.get("code") == "zs_over_limit":
-                zs_over = True
-            elif finding.get("severity") == "fault" and finding.get("code") not in faults:
-                faults.append(finding.get("code"))
-        circuit = diagnosis.get("circuit") or {}
-        zs, zs_max = circuit.get("zs_ohm"), circuit.get("zs_max_ohm")
-        if zs is not None and zs_max is not None and zs > zs_max:
-            zs_over = True
-        if any(p.get("ok") is False for p in diagnosis.get("points") or []):
-            zs_over = True
-        missing += sum(1 for r in diagnosis.get("readings") or [] if r.get("status") == "pending")
-    return {"faults": faults, "zs_over": zs_over, "missing": missing,
-            "all_clear": not faults and not zs_over and not missing}
+    flags = {"faults": [], "findings": 0, "zs_fail": 0, "zs_unproved": 0, "missing": 0, "safety": 0,
+             "despite": [], "problems": sum(len(g.problems) for g in groups)}
+    for group in groups:
+        for problem in group.problems:
+            if problem.kind in ("verdict", "not_assessed"):
+                flags["faults"].append(f"{group.circuit}: {problem.text}")
+            elif problem.kind == "finding":
+                flags["findings"] += 1
+            elif problem.kind == "steps_missing":
+                flags["missing"] += problem.count
+            elif problem.kind == "safety":
+                flags["safety"] += 1
+            else:
+                flags[problem.kind] += problem.count
+    if submit_reason:
+        flags["despite"].append("submitted")
+    if approve_reason:
+        flags["despite"].append("approved")
+    flags["all_clear"] = not flags["problems"]
+    return flags

@@ -29,8 +29,15 @@ class FilterForm(FlaskForm):
     submit = SubmitField("Show")
 
 
+#: The reason typed to sign off a job that has problems (fieldapp/review/gate.py).
+REASON_LENGTH = 2000
+REASON_NEEDED = "Say why the job can go on with these problems."
+
+
 class ApproveForm(FlaskForm):
     note = TextAreaField("Note for the job (optional)", validators=[Optional(), Length(max=2000)])
+    reason = TextAreaField("Why approve it with these problems", validators=[
+        Optional(), Length(max=REASON_LENGTH)])
     submit = SubmitField("Approve job")
 
 

@@ -9,30 +9,30 @@ from sqlalchemy import case, or_, select
 from fieldapp import changes
 from fieldapp.auth.roles import REVIEW_ROLES, role_required
 from fieldapp.extensions import db
-from fieldapp.models import ChangeLog, Circuit, Job, Outlet, utcnow
+from fieldapp.labels import outlet_name
+from fieldapp.models import Circuit, Job, Outlet, utcnow
 from fieldapp.records import circuit_reference
 from fieldapp.review import bp
+from fieldapp.review.diary import FIELD_WORDS, job_diary
 from fieldapp.review.flags import job_flags
 from fieldapp.review.forms import (
+    REASON_NEEDED,
     STATUS_LABELS,
     ApproveForm,
     FilterForm,
     ReopenForm,
     ReturnForm,
 )
+from fieldapp.review.gate import document_problems, job_problems
+from fieldapp.review.signoff import sign_off
 from fieldapp.sheets.context import sheet_context
-from fieldapp.sheets.inputs import job_diagnoses, job_inputs
+from fieldapp.sheets.inputs import job_inputs
 from fieldapp.web import actor, get_or_404, valid_id
 from ringmath.messages import CAUTIONS
 
 #: Jobs waiting for a decision first, then those with the tester, then the finished ones.
 LIST_ORDER = case({"submitted": 0, "returned": 1, "in_progress": 2, "approved": 3},
                   value=Job.status, else_=4)
-FIELD_WORDS = {
-    "r1": "step 1 r1 (line)", "rn": "step 1 rn (neutral)", "r2": "step 1 r2 (cpc)",
-    "ln": "step 2 L–N", "le": "step 3 L–CPC",
-}
-READINGS = tuple(FIELD_WORDS)
 
 
 def _like(text: str) -> str:
@@ -56,7 +56,8 @@ def index():
                                     Job.reference.ilike(pattern, escape="\\")))
     rows = []
     for job in db.session.scalars(query):
-        rows.append({"job": job, "flags": job_flags(*job_diagnoses(job))})
+        rows.append({"job": job, "flags": job_flags(job_problems(job), job.submit_reason,
+                                                     job.approve_reason)})
     return render_template("review/index.html", form=form, rows=rows,
                            status_labels=STATUS_LABELS, cautions=CAUTIONS)
 
@@ -64,13 +65,14 @@ def index():
 def _review_page(job: Job, status: int = 200, **forms):
     inputs = job_inputs(job)
     sheet = sheet_context(**inputs)
+    problems = document_problems(inputs["document"], inputs["diagnoses"], inputs["problems"])
     forms = {"approve_form": ApproveForm(), "return_form": ReturnForm(),
              "reopen_form": ReopenForm(), **forms}
     outlet_ids = {(o.circuit_id, o.key): o.id for c in job.circuits for o in c.outlets}
     return render_template("review/job.html", job=job, sheet=sheet,
                            circuits=list(zip(job.circuits, sheet["circuits"], strict=True)),
                            outlet_ids=outlet_ids, status_labels=STATUS_LABELS,
-                           **forms), status
+                           problems=problems, **forms), status
 
 
 @bp.get("/jobs/<int:job_id>")
@@ -98,12 +100,27 @@ def _decide(job_id: int, form_cls, form_name: str, allowed_from: str, values, do
 @bp.post("/jobs/<int:job_id>/approve")
 @role_required(*REVIEW_ROLES)
 def approve(job_id: int):
-    def values(form, now):
-        return {"status": "approved", "reviewed_by_id": current_user.id, "reviewed_at": now,
-                "approved_by_id": current_user.id, "approved_at": now,
-                "review_comment": (form.note.data or "").strip() or None}
-    return _decide(job_id, ApproveForm, "approve_form", "submitted", values,
-                   "Job {reference} approved: it is now read-only.")
+    """Approve a submitted job; one with problems (fieldapp/review/gate.py) only with a reason."""
+    job = get_or_404(Job, job_id)
+    form = ApproveForm()
+    if job.status != "submitted":
+        flash(f"Job {job.reference} is {STATUS_LABELS[job.status]}: nothing to approve.",
+              "error")
+        return redirect(url_for("review.job", job_id=job.id))
+    if not form.validate_on_submit():
+        return _review_page(job, 400, approve_form=form)
+    now = utcnow()
+    values = {"status": "approved", "reviewed_by_id": current_user.id, "reviewed_at": now,
+              "approved_by_id": current_user.id, "approved_at": now,
+              "review_comment": (form.note.data or "").strip() or None}
+    problems, done = sign_off(job, "approve", values, form.reason.data, actor())
+    if not done:
+        form.reason.errors = [REASON_NEEDED]
+        return _review_page(job, 422, approve_form=form)
+    db.session.commit()
+    flash(f"Job {job.reference} approved{' with the reason given' if problems else ''}: "
+          "it is now read-only.", "ok")
+    return redirect(url_for("review.job", job_id=job.id))
 
 
 @bp.post("/jobs/<int:job_id>/return")
@@ -121,40 +138,10 @@ def return_job(job_id: int):
 def reopen(job_id: int):
     def values(form, now):
         return {"status": "returned", "reviewed_by_id": current_user.id, "reviewed_at": now,
-                "approved_by_id": None, "approved_at": None,
+                "approved_by_id": None, "approved_at": None, "approve_reason": None,
                 "review_comment": form.reason.data.strip()}
     return _decide(job_id, ReopenForm, "reopen_form", "approved", values,
                    "Job {reference} reopened and returned to its tester.")
-
-
-def _history_rows(job: Job, circuit_id: int | None, outlet_id: int | None,
-                  field: str | None) -> list[dict]:
-    circuits = {c.id: c for c in job.circuits}
-    outlets = {o.id: o for c in job.circuits for o in c.outlets}
-    query = select(ChangeLog).where(or_(
-        (ChangeLog.entity == "job") & (ChangeLog.entity_id == job.id),
-        ChangeLog.circuit_id.in_(list(circuits) or [-1])))
-    if circuit_id is not None:
-        query = query.where(ChangeLog.circuit_id == circuit_id)
-    if outlet_id is not None:
-        query = query.where(ChangeLog.entity == "outlet", ChangeLog.entity_id == outlet_id)
-    if field:
-        query = query.where(ChangeLog.field == field)
-    rows = []
-    for row in db.session.scalars(query.order_by(ChangeLog.id.desc())):
-        if row.entity == "outlet" and row.entity_id in outlets:
-            outlet = outlets[row.entity_id]
-            what = (f"{circuit_reference(circuits[outlet.circuit_id])} · outlet "
-                    f"{outlet.label or outlet.key} ({outlet.key})")
-        elif row.entity == "circuit" and row.entity_id in circuits:
-            what = circuit_reference(circuits[row.entity_id])
-        else:
-            what = f"job {job.reference}"
-        rows.append({"at": row.at, "who": row.user.name if row.user else "—",
-                     "device": row.device or "—", "what": what,
-                     "field": FIELD_WORDS.get(row.field, row.field.replace("_", " ")),
-                     "old": row.old_value, "new": row.new_value})
-    return rows
 
 
 @bp.get("/jobs/<int:job_id>/history")
@@ -172,8 +159,9 @@ def history(job_id: int):
             outlet is not None and outlet.circuit.job_id != job.id):
         return render_template("error.html", title="Not in this job",
                                message="That circuit or outlet belongs to another job."), 404
-    rows = _history_rows(job, circuit_id, outlet_id, field)
+    rows = job_diary(job, circuit_id, outlet_id, field)
     return render_template("review/history.html", job=job, rows=rows,
                            circuit_ref=circuit_reference(circuit) if circuit else None,
                            outlet=outlet, field=FIELD_WORDS.get(field, field),
+                           outlet_title=outlet_name(outlet.key, outlet.label) if outlet else "",
                            cautions=CAUTIONS)

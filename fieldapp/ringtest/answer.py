@@ -5,9 +5,11 @@ Two presentation rules, pure functions over ``diagnose`` output:
 - a failing outlet is never hidden: every point whose Zs fails (over its limit, or no earth
   path proved because step 3 reads OL) is named first, before the verdict's summary, and the
   summary tiles say "fails" / "not proved" instead of a reassuring highest value;
-- findings are shown most likely first, except that among faults of similar likelihood
-  (within a factor ``SIMILAR_LIKELIHOOD``) the more dangerous explanation comes first, so a
-  harmless reading of the pattern never hides a dangerous one that fits about as well.
+- findings keep ringmath's order, except that among fitted explanations (faults with a
+  confidence) of similar likelihood, within a factor ``SIMILAR_LIKELIHOOD``, the more
+  dangerous comes first, so a harmless reading of the pattern never hides a dangerous one
+  that fits about as well. Checks without a confidence (Zs, rules) are facts, not rival
+  explanations, and stay where they are.
 
 The circuit-level pass/fail is ``diagnosis["circuit"]["zs_ok"]`` where the core gives it;
 point verdicts (``points[].ok``) are ringmath's own. Nothing is compared here.
@@ -15,7 +17,7 @@ point verdicts (``points[].ok``) are ringmath's own. Nothing is compared here.
 
 from __future__ import annotations
 
-from fieldapp.labels import SEVERITY_WORDS, outlet_names, verdict_word
+from fieldapp.labels import SEVERITY_WORDS, ohm, outlet_names, verdict_word
 
 #: Two fault explanations whose confidences are within this factor "fit about as well".
 SIMILAR_LIKELIHOOD = 2.0
@@ -33,7 +35,6 @@ DANGER = {
     "unrecorded_spur": 3,
     "wrong_cross_connection": 1,
 }
-SEVERITY_ORDER = {"fault": 0, "warning": 1, "info": 2}
 
 
 def danger(finding: dict) -> int:
@@ -41,30 +42,33 @@ def danger(finding: dict) -> int:
     return DANGER.get(f"{code}:{finding.get('conductor')}", DANGER.get(code, 2))
 
 
-def _likelihood(finding: dict) -> float:
-    """A finding's confidence; one without a fitted confidence (a rule or a Zs check) is a
-    statement of fact, as likely as can be."""
-    value = finding.get("confidence")
-    return 1.0 if value is None else float(value)
+def _fitted(finding: dict) -> bool:
+    return finding.get("severity") == "fault" and finding.get("confidence") is not None
 
 
 def order_findings(findings: list[dict]) -> list[dict]:
-    """Findings by severity, then likelihood, with faults of similar likelihood ordered by
-    danger. Stable for everything else."""
-    findings = [f for f in findings or [] if isinstance(f, dict)]
-    ranked = sorted(findings, key=lambda f: (SEVERITY_ORDER.get(f.get("severity"), 3),
-                                             -_likelihood(f)))
-    out: list[dict] = []
+    """ringmath's findings with each run of fitted faults of similar likelihood ordered by
+    danger (then likelihood); everything else keeps its place."""
+    out = [f for f in findings or [] if isinstance(f, dict)]
     i = 0
-    while i < len(ranked):
-        first = ranked[i]
+    while i < len(out):
+        if not _fitted(out[i]):
+            i += 1
+            continue
         j = i + 1
-        if first.get("severity") == "fault":
-            while (j < len(ranked) and ranked[j].get("severity") == "fault"
-                   and _likelihood(ranked[j]) * SIMILAR_LIKELIHOOD >= _likelihood(first)):
-                j += 1
-        group = ranked[i:j]
-        out += sorted(group, key=lambda f: (-danger(f), -_likelihood(f)))
+        while j < len(out) and _fitted(out[j]):
+            j += 1
+        run = sorted(out[i:j], key=lambda f: -float(f["confidence"]))
+        ordered: list[dict] = []
+        k = 0
+        while k < len(run):
+            lead = float(run[k]["confidence"])
+            m = k + 1
+            while m < len(run) and float(run[m]["confidence"]) * SIMILAR_LIKELIHOOD >= lead:
+                m += 1
+            ordered += sorted(run[k:m], key=lambda f: (-danger(f), -float(f["confidence"])))
+            k = m
+        out[i:j] = ordered
         i = j
     return out
 
@@ -103,8 +107,6 @@ def zs_state(diagnosis: dict) -> dict:
 def tiles(diagnosis: dict, state: dict) -> list[dict]:
     """The summary tiles, Zs result first: [{"term", "value", "bad"}]."""
     c = diagnosis.get("circuit") or {}
-    from fieldapp.labels import ohm
-
     n = len(state["failing"])
     result = ("✗ fails at " + (f"{n} outlets" if n > 1 else "1 outlet") if n else
               "✗ fails" if state["ok"] is False else "✓ within limit" if state["ok"] else
@@ -133,7 +135,7 @@ def leading(diagnosis: dict | None) -> dict | None:
     core_top = next((f for f in diagnosis.get("findings") or []
                      if isinstance(f, dict) and f.get("severity") == "fault"), None)
     summary = diagnosis.get("summary") or ""
-    if top is not None and core_top is not None and top is not core_top:
+    if top is not None and core_top is not None and top is not core_top and _fitted(core_top):
         summary = top.get("message") or summary  # the dangerous reading leads, in its words
     return {
         "verdict": verdict,

@@ -9,19 +9,30 @@ from markupsafe import Markup, escape
 from fieldapp import labels
 from fieldapp.records import diagnose_circuit
 from fieldapp.ringtest import bp
+from fieldapp.ringtest.text import STEP_BADGES
 
 log = logging.getLogger(__name__)
 
 
 @bp.app_template_filter("ohm")
-def ohm_filter(value, places: int = 2) -> str:
-    return labels.ohm(value, places)
+def ohm_filter(value, places: int = 2, unit: bool = True) -> str:
+    return labels.ohm(value, places, unit)
 
 
 @bp.app_template_filter("named")
 def named_filter(ids, names: dict | None) -> str:
     """Outlet ids as "a · Kitchen, c · Hall" (ids alone where the name is unknown)."""
     return ", ".join((names or {}).get(str(i), str(i)) for i in ids or ())
+
+
+@bp.app_template_global("reading_name")
+def reading_name(field: str, with_step: bool = False) -> str:
+    return labels.reading_name(field, with_step)
+
+
+@bp.app_template_global("outlet_name")
+def outlet_name(oid, label: str | None = None, kind: str | None = None) -> str:
+    return labels.outlet_name(oid, label, kind)
 
 
 @bp.app_template_global("term")
@@ -48,3 +59,9 @@ def circuit_verdict(circuit) -> dict:
         return {"verdict": "none", "words": "Not assessed", "reason": reason}
     verdict = diagnosis.get("verdict") or "incomplete"
     return {"verdict": verdict, "words": labels.verdict_word(verdict), "reason": None}
+
+
+@bp.app_context_processor
+def step_words() -> dict:
+    """The step badges of circuit cards (the job page)."""
+    return {"step_badges": STEP_BADGES}

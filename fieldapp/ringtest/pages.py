@@ -16,7 +16,7 @@ from fieldapp.records import diagnose_circuit
 from fieldapp.ringtest import answer
 from fieldapp.ringtest import feedback as fb
 from fieldapp.ringtest.forms import ActionForm, OutletForm, ReadingForm
-from fieldapp.ringtest.text import E2E_READINGS, STEP_INFO
+from fieldapp.ringtest.text import E2E_READINGS, STEP_INFO, STEP_TERMS
 from fieldapp.web import get_or_404
 
 
@@ -81,9 +81,10 @@ def reading_items(circuit: Circuit, step: str, diagnosis: dict | None) -> list[d
 
 def render_step(circuit: Circuit, step: str, *, bad: ReadingForm | None = None,
                 slip: Slip | None = None, outlet_form: OutletForm | None = None,
-                status: int = 200):
+                at: str | None = None, status: int = 200):
     """The page of one reading step; ``bad`` is a submitted reading form with its errors and
-    ``slip`` the decimal-point question about it."""
+    ``slip`` the decimal-point question about it; ``at`` the card whose field takes the focus
+    (a new outlet's), else the first reading still due."""
     diagnosis, diagnosis_error = diagnose_circuit(circuit)
     items = reading_items(circuit, step, diagnosis)
     if bad is not None:
@@ -96,10 +97,13 @@ def render_step(circuit: Circuit, step: str, *, bad: ReadingForm | None = None,
     if outlet_form is not None:
         outlet_form.set_sources(changes.live_outlets(circuit))
     pending = next((i for i in items if i["value"] is None), None)
+    if at is not None:
+        pending = next((i for i in items if i["anchor"] == at), pending)
     following = STEPS[STEPS.index(step) + 1]
     return render_template(
         "ringtest/step.html", circuit=circuit, job=circuit.job, step=step,
         info=STEP_INFO[step], stepper=stepper(circuit, step), items=items,
+        step_terms=STEP_TERMS[step],
         focus=(bad and anchor_for(bad.field.data, bad.outlet.data or None))
         or (pending and pending["anchor"]),
         leading=answer.leading(diagnosis), diagnosis_error=diagnosis_error,
@@ -123,5 +127,5 @@ def render_results(circuit: Circuit):
         zs=state, tiles=answer.tiles(diagnosis, state) if diagnosis else [],
         ring_svg=drawings.ring_picture(diagnosis) if diagnosis else Markup(""),
         plot_svg=drawings.readings_plot(diagnosis) if diagnosis else Markup(""),
-        safe=changes.safety_confirmed(circuit),
+        safe=changes.safety_confirmed(circuit), severity_words=labels.SEVERITY_WORDS,
     )

@@ -7,8 +7,8 @@ STEP_INFO = {
     "safety": {"number": 0, "short": "Safety", "title": "Safe isolation"},
     "e2e": {
         "number": 1, "short": "Step 1", "title": "End-to-end readings",
-        "join": "Nothing joined yet. At the board, take the two ends of the ring apart and "
-                "measure each conductor from one end to the other.",
+        "join": "Nothing joined yet. Null the meter's leads first. At the board, take the two "
+                "ends of the ring apart and measure each conductor from one end to the other.",
     },
     "ln": {
         "number": 2, "short": "Step 2", "title": "Line to neutral at every outlet",
@@ -30,3 +30,6 @@ E2E_READINGS = (
 )
 STEP_BADGES = {"safety": "safety checks", "e2e": "step 1", "ln": "step 2", "le": "step 3",
                "results": "results"}
+#: The terms each step page explains on tap (fieldapp.labels.TERMS).
+STEP_TERMS = {"e2e": ("nulled", "OL", "in band", "CPC"), "ln": ("OL", "in band", "spur"),
+              "le": ("R1+R2", "CPC", "OL", "in band", "Zs")}

@@ -9,13 +9,14 @@ from __future__ import annotations
 
 from flask import abort, flash, redirect, render_template, request, url_for
 from flask_login import login_required
-from sqlalchemy import select
 
 from fieldapp import changes, readings
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
 from fieldapp.extensions import db
+from fieldapp.labels import outlet_name
 from fieldapp.models import STEPS, Outlet, User, utcnow
 from fieldapp.readings import anchor_for
+from fieldapp.review.diary import circuit_diary
 from fieldapp.ringtest import bp
 from fieldapp.ringtest.errors import outlet_error, spur_error
 from fieldapp.ringtest.flashes import flash_saved
@@ -31,6 +32,7 @@ from fieldapp.ringtest.pages import (
 )
 from fieldapp.ringtest.text import READING_STEPS, STEP_INFO
 from fieldapp.web import actor
+from ringmath.messages import CAUTIONS
 
 
 @bp.get("/<int:circuit_id>/test")
@@ -90,7 +92,7 @@ def safety(circuit_id: int):
 def step(circuit_id: int, step: str):
     if step not in READING_STEPS:
         abort(404)
-    return render_step(get_circuit(circuit_id), step)
+    return render_step(get_circuit(circuit_id), step, at=request.args.get("at"))
 
 
 @bp.post("/<int:circuit_id>/test/reading")
@@ -100,6 +102,9 @@ def save_reading(circuit_id: int):
     form = ReadingForm()
     field = form.field.data or ""
     if field not in changes.READING_FIELDS or not form.validate_on_submit():
+        if field in changes.READING_FIELDS and set(form.errors) == {"value"}:
+            # too long to be a reading: the form with its message
+            return render_step(circuit, readings.step_of(field), bad=form, status=422)
         abort(400)
     step = readings.step_of(field)
     outlet = (readings.find_outlet(circuit, form.outlet.data)
@@ -169,8 +174,10 @@ def add_outlet(circuit_id: int):
         form.spur_from_key.errors = [spur_error(error)]
         return render_step(circuit, step, outlet_form=form, status=422)
     db.session.commit()
-    flash(f"Added outlet {outlet.key}: {outlet.label}.", "ok")
-    return redirect(step_url(circuit, step, anchor_for(step, outlet.key)))
+    flash(f"Added outlet {outlet_name(outlet.key, outlet.label)}.", "ok")
+    # its reading field takes the focus; no URL fragment, which would take the focus away
+    return redirect(url_for("ringtest.step", circuit_id=circuit.id, step=step,
+                            at=anchor_for(step, outlet.key)))
 
 
 @bp.route("/<int:circuit_id>/outlets/<key>/edit", methods=["GET", "POST"])
@@ -227,7 +234,7 @@ def delete_outlet(circuit_id: int, key: str):
         return redirect(url_for("ringtest.edit_outlet", circuit_id=circuit.id, key=key,
                                 step=back))
     db.session.commit()
-    flash(f"Outlet {outlet.key} ({outlet.label}) removed from the test; "
+    flash(f"Outlet {outlet_name(outlet.key, outlet.label)} removed from the test; "
           "its readings stay in the history.", "ok")
     return redirect(step_url(circuit, back))
 
@@ -242,11 +249,5 @@ def results(circuit_id: int):
 @login_required
 def history(circuit_id: int):
     circuit = get_circuit(circuit_id)
-    keys = dict(db.session.execute(
-        select(Outlet.id, Outlet.key).where(Outlet.circuit_id == circuit.id)).all())
-    users = {u.id: u.name for u in db.session.scalars(select(User))}
-    rows = [{"row": r, "what": ("circuit" if r.entity == "circuit" else
-                                f"outlet {keys.get(r.entity_id, r.entity_id)}"),
-             "who": users.get(r.user_id, "—")} for r in changes.history(circuit)]
     return render_template("ringtest/history.html", circuit=circuit, job=circuit.job,
-                           rows=rows)
+                           rows=circuit_diary(circuit), cautions=CAUTIONS)

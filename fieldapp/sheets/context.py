@@ -9,12 +9,15 @@ submitted, reviewed, approved). No models, no Flask, no numpy: the printed sheet
 
 from __future__ import annotations
 
+import base64
 import datetime as dt
 import math
+import re
 
 from markupsafe import Markup
 
 from fieldapp.drawings import KIND_WORDS, point_numbers, ring_picture
+from fieldapp.live.feedback import live_summary
 from ringmath.messages import CAUTIONS
 
 VERDICT_WORDS = {
@@ -228,22 +231,6 @@ def _zs_result(summary: dict, rows: list[dict]) -> str:
     return NOT_PROVED
 
 
-def _key_rows(rows: list[dict]) -> list[dict]:
-    """The schedule's outlets in the ring picture's number order, each with a few words."""
-    def notes(row: dict) -> str:
-        words = [f"{row['kind']} {row['fuse']}".strip()]
-        if row["fed"] != "ring":
-            words.append(row["fed"])
-        if row["named"]:
-            words.append(f"{row['named']}: see findings")
-        if row["failed"]:
-            words.append("Zs FAIL")
-        return ", ".join(words)
-
-    return [{"n": row["n"], "label": row["label"] or row["id"], "id": row["id"],
-             "notes": notes(row)} for row in sorted(rows, key=lambda row: row["n"])]
-
-
 def _zs_line(summary: dict, rows: list[dict]) -> str:
     """The Zs result in one phrase: the circuit's figure against its limit when known, and the
     outlets over their limit (or open) by number."""
@@ -259,7 +246,19 @@ def _zs_line(summary: dict, rows: list[dict]) -> str:
     return "; ".join(parts)
 
 
-def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str | None) -> dict:
+#: Tooltips of the screen's drawing: nothing to show on paper.
+_TITLE = re.compile(r"<title>.*?</title>", re.S)
+
+
+def sketch_uri(svg: str) -> str:
+    """The printed ring picture as an image (a data URI, tooltips left out): the layout engine
+    then neither styles nor lays out each of its shapes as part of the page."""
+    light = _TITLE.sub("", str(svg))
+    return "data:image/svg+xml;base64," + base64.b64encode(light.encode()).decode("ascii")
+
+
+def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str | None,
+                     drawing: str = "screen") -> dict:
     circuit = rec.get("circuit") or {}
     e2e = rec.get("end_to_end") or {}
     ctx = {
@@ -300,11 +299,15 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
     ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict"), "")
                       if ctx["summary"]["result"] == _pass_word(True) else "")
     ctx["findings"] = _findings(diagnosis, _numbers(rec, diagnosis))
-    ctx["picture"] = ring_picture(diagnosis) if diagnosis else Markup("")
-    # the printed sheet's picture leaves out the drawing's own key: the sheet lists the points
-    # beside it (``key``) and prints the findings in full
-    ctx["sketch"] = ring_picture(diagnosis, key=False) if diagnosis else Markup("")
-    ctx["key"] = _key_rows(ctx["outlets"])
+    # one drawing per circuit: the screen's picture with its own key, or the printed one
+    # without (the schedule beside it carries the numbers, the findings are printed in full)
+    ctx["picture"] = Markup("")
+    ctx["sketch"] = ""
+    if diagnosis and drawing == "screen":
+        ctx["picture"] = ring_picture(diagnosis)
+    elif diagnosis and drawing == "print":
+        ctx["sketch"] = sketch_uri(ring_picture(diagnosis, key=False))
+    ctx["live"] = live_summary(rec, diagnosis or None)
     return ctx
 
 
@@ -318,14 +321,45 @@ def _cautions(diagnoses) -> list[str]:
     return seen or list(CAUTIONS)
 
 
+def _instrument(people: dict) -> str:
+    model = (people.get("instrument_model") or "").strip()
+    serial = (people.get("instrument_serial") or "").strip()
+    if not model and not serial:
+        return "not recorded"
+    return ", ".join(x for x in (model or "model not recorded",
+                                 f"serial no. {serial}" if serial else "no serial number") if x)
+
+
+def _day(value) -> str:
+    """The date part of a time for a signature line; blank (to write by hand) when unknown."""
+    text = when(value)
+    return "" if text == DASH else text.removesuffix(" UTC")[:11]
+
+
+def _signoff(document: dict, diagnoses: list, problems: list, people: dict) -> dict:
+    """The sign-off rule's problems (fieldapp/review/gate.py) and the reasons given to go on."""
+    from fieldapp.review.gate import document_problems  # the review package imports this one
+
+    reasons = []
+    for stage, key, who, at in (("Submitted", "submit_reason", "tester", "submitted_at"),
+                                ("Approved", "approve_reason", "approved_by", "approved_at")):
+        if people.get(key):
+            reasons.append({"stage": stage, "text": people[key], "when": when(people.get(at)),
+                            "who": people.get(who) or DASH})
+    return {"problems": document_problems(document, diagnoses, problems), "reasons": reasons}
+
+
 def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *,
-                  problems: list | None = None, generated_at=None) -> dict:
+                  problems: list | None = None, generated_at=None,
+                  drawing: str = "screen") -> dict:
     """Everything the sheet prints, as strings and lists of strings.
 
     document: a ``ringtest/1`` job document; diagnoses: one ``ringmath.diagnose`` result per
     circuit (or None); people: ``tester``, ``submitted_at``, ``reviewed_by``, ``reviewed_at``,
-    ``approved_by``, ``approved_at``, ``review_comment``, ``status`` (any may be missing);
-    problems: per circuit, why it was not assessed.
+    ``approved_by``, ``approved_at``, ``review_comment``, ``status``, ``instrument_model``,
+    ``instrument_serial``, ``submit_reason``, ``approve_reason`` (any may be missing);
+    problems: per circuit, why it was not assessed; drawing: "screen" (``picture``, an inline
+    SVG with its key) or "print" (``sketch``, an image URI without the key).
     """
     records = document.get("circuits") or []
     if len(diagnoses) != len(records):
@@ -353,9 +387,18 @@ def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *
         "status": STATUS_WORDS.get(people.get("status"), people.get("status") or ""),
         "review_comment": people.get("review_comment") or "",
         "verdict": VERDICT_WORDS.get(verdict, "Not assessed"),
-        "circuits": [_circuit_context(i, rec, d, p)
+        "circuits": [_circuit_context(i, rec, d, p, drawing)
                      for i, (rec, d, p) in enumerate(zip(records, diagnoses, problems,
                                                          strict=True))],
+        "instrument": _instrument(people),
+        "signoff": _signoff(document, diagnoses, problems, people),
+        "signatures": [
+            {"role": "Tester", "name": people.get("tester") or job.get("tester") or "",
+             "date": _day(people.get("submitted_at"))},
+            {"role": "Reviewer",
+             "name": people.get("approved_by") or people.get("reviewed_by") or "",
+             "date": _day(people.get("approved_at") or people.get("reviewed_at"))},
+        ],
         "cautions": _cautions(diagnoses),
         "generated": when(generated_at or dt.datetime.now(dt.UTC).replace(tzinfo=None)),
     }

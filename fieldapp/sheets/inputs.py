@@ -26,6 +26,10 @@ def job_people(job: Job) -> dict:
         "approved_by": _name(job.approved_by),
         "approved_at": job.approved_at,
         "review_comment": job.review_comment,
+        "instrument_model": job.instrument_model,
+        "instrument_serial": job.instrument_serial,
+        "submit_reason": job.submit_reason,
+        "approve_reason": job.approve_reason,
     }
 
 

@@ -8,6 +8,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from jinja2 import Environment, FileSystemLoader, select_autoescape
+from weasyprint import HTML  # imported with the app, not on the first download (about 1 s)
 
 from fieldapp.sheets.context import sheet_context
 
@@ -21,14 +22,12 @@ _env = Environment(loader=FileSystemLoader(TEMPLATES), autoescape=select_autoesc
 def sheet_html(document: dict, diagnoses: list, people: dict | None = None, **kwargs) -> str:
     """The sheet as one HTML document with its print stylesheet inline."""
     return _env.get_template(TEMPLATE).render(**sheet_context(document, diagnoses, people,
-                                                              **kwargs))
+                                                              drawing="print", **kwargs))
 
 
 def sheet_document(document: dict, diagnoses: list, people: dict | None = None, **kwargs):
     """The sheet laid out on A4 pages (a WeasyPrint ``Document``: its pages can be inspected
     before ``write_pdf``)."""
-    from weasyprint import HTML
-
     return HTML(string=sheet_html(document, diagnoses, people, **kwargs),
                 base_url=str(TEMPLATES)).render()
 

@@ -33,6 +33,8 @@ from fieldapp.transfer.schemas import (
 def dump_safety(block: dict) -> dict:
     return SafetySchema().dump(block)
 
+#: The device label of every change an import writes: "imported from a file".
+IMPORT_DEVICE = "imported from a file"
 #: Document key -> Circuit column, for the safety checks made before any reading.
 SAFETY_COLUMNS = {
     "isolated": "safety_isolated",
@@ -149,6 +151,8 @@ def import_job(doc, actor: changes.Actor, importer_user: User) -> tuple[Job, lis
     errors = import_errors(doc)
     if errors:
         raise DocumentError(errors)
+    # every row the import writes says where it came from (the history shows the device)
+    actor = changes.Actor(actor.user_id, IMPORT_DEVICE)
     data = load_document(doc)
     canonical = dump_document(data)
     notes = []

@@ -23,9 +23,12 @@ from marshmallow import RAISE, Schema, ValidationError, fields, validate, valida
 from fieldapp import limits
 from fieldapp.jobs.forms import BREAKER_STANDARDS, CURVES, OCPD_STANDARDS, RATINGS_A, RCD_MA
 from fieldapp.jobs.forms import RCD_TYPES as RCD_TYPE_CHOICES
+from fieldapp.live.values import CPC_KINDS, TAKEN_AT
 from ringmath import record
 
 OL = "OL"
+#: The readings of an outlet, each parsed by ringmath on its own.
+OUTLET_READINGS = ("ln", "le", "zs_measured", "ln_terminals", "le_terminals")
 #: Text a meter or a tester writes for an open circuit / over range; stored as "OL".
 OL_SPELLINGS = ("OL", "O/L", "OPEN", "∞", "INF")
 
@@ -188,9 +191,49 @@ class OcpdSchema(StrictSchema):
             raise ValidationError("a fuse has no curve", "curve")
 
 
+class IrReading(fields.Field):
+    """An insulation resistance as recorded: a number of MΩ, ``">999"`` (the instrument showed
+    "> value") or ``null``. The text keeps its column's length; ringmath checks the value."""
+
+    default_error_messages = {
+        "invalid": "expected a number of MΩ or \">\" and a number, e.g. \">999\"",
+        "too_long": "at most 16 characters",
+    }
+
+    def __init__(self, **kwargs):
+        super().__init__(allow_none=True, load_default=None, **kwargs)
+
+    def _serialize(self, value, attr, obj, **kwargs):
+        if value is None or isinstance(value, str):
+            return value
+        return float(value)
+
+    def _deserialize(self, value, attr, data, **kwargs):
+        if isinstance(value, str) and value.strip().startswith(">"):
+            text = ">" + value.strip()[1:].strip()
+            if len(text) > 16:
+                raise self.make_error("too_long")
+            return text
+        try:
+            return _number(value)
+        except (TypeError, ValueError):
+            raise self.make_error("invalid") from None
+
+
 class RcdSchema(StrictSchema):
     rated_ma = Number(required=True, validate=_one_of_numbers(RCD_RATINGS_MA, "mA"))
     type = _optional(_choice, choices=RCD_TYPES)
+    trip_ms = _optional(Number)
+    button_ok = _optional(Flag)
+
+
+class InsulationSchema(StrictSchema):
+    """Insulation resistance between the conductors, in MΩ, and the test voltage."""
+
+    test_v = _optional(Number)
+    ln_mohm = IrReading()
+    le_mohm = IrReading()
+    ne_mohm = IrReading()
 
 
 class SafetySchema(StrictSchema):
@@ -219,6 +262,10 @@ class CircuitSchema(StrictSchema):
     ze_source = _choice(record.ZE_SOURCES, load_default="measured")
     earthing = _optional(_choice, choices=record.EARTHING_SYSTEMS)
     cable_length_m = _optional(Number)
+    cpc_kind = _choice(CPC_KINDS, load_default="cable_core")
+    parallel_paths = Flag(load_default=False)
+    pfc_ka = _optional(Number)
+    insulation = _nested_optional(InsulationSchema)
     safety = fields.Nested(SafetySchema, load_default=lambda: SafetySchema().load({}))
 
 
@@ -238,6 +285,10 @@ class OutletSchema(StrictSchema):
     spur_cpc_csa_mm2 = _optional(Number)
     ln = Reading()
     le = Reading()
+    zs_measured = Reading()
+    taken_at = _optional(_choice, choices=TAKEN_AT)
+    ln_terminals = Reading()
+    le_terminals = Reading()
 
 
 class CircuitRecordSchema(StrictSchema):
@@ -269,6 +320,13 @@ class JobDocumentSchema(StrictSchema):
         validate.Length(min=1, error="needs at least one circuit"),
         validate.Length(max=limits.MAX_CIRCUITS_PER_JOB,
                         error=f"at most {limits.MAX_CIRCUITS_PER_JOB} circuits in one job")])
+
+    @validates_schema
+    def _outlets_in_job(self, data, **_kwargs):
+        total = sum(len(rec.get("outlets") or ()) for rec in data.get("circuits") or ())
+        if total > limits.MAX_OUTLETS_PER_JOB:
+            raise ValidationError(f"at most {limits.MAX_OUTLETS_PER_JOB} outlets in one job, "
+                                  f"this file has {total}", "circuits")
 
 
 # ---------------------------------------------------------------- error reporting
@@ -335,7 +393,7 @@ def domain_errors(doc) -> list[str]:
         outlets = rec.get("outlets")
         for j, outlet in enumerate(outlets if isinstance(outlets, list) else []):
             where = f"{base}.outlets[{j}]"
-            for name in ("ln", "le") if isinstance(outlet, dict) else ():
+            for name in OUTLET_READINGS if isinstance(outlet, dict) else ():
                 ok &= attempt(record.parse_reading, outlet.get(name), f"{where}.{name}")
             ok &= attempt(record.parse_outlet, outlet, where)
         if ok:
@@ -350,6 +408,10 @@ def _too_big(doc) -> bool:
     if not isinstance(circuits, list):
         return False
     if len(circuits) > limits.MAX_CIRCUITS_PER_JOB:
+        return True
+    lengths = [len(rec["outlets"]) for rec in circuits
+               if isinstance(rec, dict) and isinstance(rec.get("outlets"), list)]
+    if sum(lengths) > limits.MAX_OUTLETS_PER_JOB:
         return True
     return any(isinstance(rec, dict) and isinstance(rec.get("outlets"), list)
                and len(rec["outlets"]) > limits.MAX_OUTLETS_PER_CIRCUIT for rec in circuits)

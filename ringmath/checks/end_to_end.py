@@ -23,6 +23,9 @@ CABLE_LENGTH_INFO = 0.25
 CABLE_LENGTH_WARNING = 0.50
 #: Longest spur cable we treat as plausible, metres. Chosen: an unfused spur off a domestic
 
+#: r2 below this fraction of the cable's value is a parallel earth path, not a larger cpc
+#: (the next size up lowers r2 by at most about a third; our working figure).
+PARALLEL_BELOW = 0.6
 STEP_CONDUCTORS = {"r1": "line", "rn": "neutral", "r2": "cpc"}
 
 
@@ -58,7 +61,9 @@ def _end_to_end_limits(test: RingTest) -> dict[str, tuple]:
         limits["rn"] = (e.r1_ohm, e.r1_ohm - ENDS_TOLERANCE_OHM, e.r1_ohm + ENDS_TOLERANCE_OHM)
         if e.r1_ohm > 0 and finite(e.r2_ohm) and e.r2_ohm > 0:
             r2_ohm = e.r1_ohm * ring_cpc_ratio(test)
-            tol = cpc_ratio_tolerance(e.r1_ohm, e.r2_ohm)
+            # the tolerance comes from the expected r2, never the reading: a tiny r2 (a steel
+            # conduit cpc) would otherwise widen its own tolerance past itself
+            tol = cpc_ratio_tolerance(e.r1_ohm, r2_ohm)
             limits["r2"] = (r2_ohm, r2_ohm * (1 - tol), r2_ohm * (1 + tol))
     return {step: tuple(None if x is None else round(x, 2) for x in values)
             for step, values in limits.items()}
@@ -129,7 +134,10 @@ def _ends_mismatch(r1_ohm: float, rn_ohm: float, diff_ohm: float) -> Finding:
 def _cpc_ratio_finding(test: RingTest, r2_expected_ohm: float, low_ohm: float,
                        high_ohm: float) -> list[Finding]:
     e, c = test.end_to_end, test.circuit
-    if low_ohm <= e.r2_ohm <= high_ohm:
+    declared = c.cpc_kind != "cable_core" or c.parallel_paths
+    if e.r2_ohm < low_ohm and (declared or e.r2_ohm < PARALLEL_BELOW * r2_expected_ohm):
+        return [_parallel_path(test, r2_expected_ohm, declared)]
+    if declared or low_ohm <= e.r2_ohm <= high_ohm:
         return []
     ratio, ring_ratio = e.r2_ohm / e.r1_ohm, ring_cpc_ratio(test)
     deviation = ratio / ring_ratio - 1
@@ -149,6 +157,29 @@ def _cpc_ratio_finding(test: RingTest, r2_expected_ohm: float, low_ohm: float,
                 "(a high r1 lowers the ratio).")
     return [Finding(code="cpc_ratio", severity="warning", conductor="cpc", step=None,
                     message=head + why, next_check=look)]
+
+
+def _parallel_path(test: RingTest, r2_expected_ohm: float, declared: bool) -> Finding:
+    """r2 far below the cable's value: the cpc is (or is paralleled by) metalwork."""
+    e, c = test.end_to_end, test.circuit
+    what = {"conduit": "the steel conduit", "trunking": "the metal trunking",
+            "armour": "the cable armour", "separate": "the separate cpc"}.get(
+        c.cpc_kind, "a parallel earth path (metal conduit, trunking or bonded metalwork)")
+    said = " as recorded" if declared else ""
+    return Finding(
+        code="parallel_earth_path", severity="info" if declared else "warning",
+        conductor="cpc", step=None,
+        message=(f"r2 reads {e.r2_ohm:.2f} Ω against about {r2_expected_ohm:.2f} Ω for the "
+                 f"cable's {c.cpc_csa_mm2:g} mm² cpc (r1 {e.r1_ohm:.2f} Ω): the earth path "
+                 f"includes {what}{said}. Step 3 readings and R1+R2 then show that path in "
+                 "parallel, not the cable's cpc alone, so they cannot prove the cpc is "
+                 "continuous round the ring, and Zs holds only while the metalwork stays "
+                 "connected."),
+        next_check=("Check the cpc is terminated at every outlet and the metalwork's joints are "
+                    "sound; where the cable's cpc must be proved on its own, test with the "
+                    "parallel path disconnected. For Zs use the value measured with the path as "
+                    "it will stay in service."),
+    )
 
 
 def _cable_length_finding(r1_ohm: float, expected_ohm: float, c: Circuit) -> Finding:

@@ -47,8 +47,10 @@ Values:
   characters are refused.
 - Insulation readings are in MΩ: a number, or ``">999"`` when the instrument shows over range
   (``IrValue(999, over=True)``).
-- ``ocpd`` must be a device ``ringmath.devices`` holds a checked limit for; ``rcd.rated_ma``
-  one of 6, 10, 30, 100, 300, 500 mA; ``rcd.type`` AC, A, F or B.
+- ``ocpd`` must be a device the tables of ``ringmath.devices`` list (BS EN 60898, BS EN 61009,
+  BS 3871 breakers; BS 88-2, BS 88-3, BS 3036, BS 1361, BS 1362 fuses, with their ratings); a
+  listed device whose limit could not be checked is still a valid record (its Zs limit is then
+  unknown). ``rcd.rated_ma`` one of 6, 10, 30, 100, 300, 500 mA; ``rcd.type`` AC, A, F or B.
 - At most MAX_OUTLETS outlets per circuit and MAX_CIRCUITS circuits per job; ids at most 40
   characters, other text 200.
 

@@ -3,6 +3,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from ringmath.conductors import resistance_mohm_per_m
 from ringmath.record.model import (
     CPC_KINDS,
@@ -42,7 +44,7 @@ from ringmath.record.values import (
 )
 
 
-def _listed(value: float, path: str, allowed, unit: str) -> float:
+def _listed(value: float, path: str, allowed: tuple[float, ...], unit: str) -> float:
     if not any(abs(value - a) < 1e-9 for a in allowed):
         raise RecordError(path, "choice", f"{value:g} {unit} is not one of "
                           f"{', '.join(f'{a:g}' for a in allowed)} {unit}")
@@ -50,9 +52,10 @@ def _listed(value: float, path: str, allowed, unit: str) -> float:
 
 
 def parse_ocpd(doc: object, path: str = "circuit.ocpd") -> Ocpd:
-    """Parse the OCPD block and check the device is one ``ringmath.devices`` has a checked limit
-    for (RecordError "choice" naming ``<path>.standard`` / ``.curve`` / ``.rating_a``)."""
-    from ringmath.devices import device_limit  # devices imports the model: import on use
+    """Parse the OCPD block and check the device is one ``ringmath.devices`` lists (RecordError
+    "choice" naming ``<path>.standard`` / ``.curve`` / ``.rating_a``); a listed device whose
+    limit is not checked is still a valid record (its Zs limit is then unknown)."""
+    from ringmath.devices import check_device  # devices imports the model: import on use
 
     d = obj(doc, path)
     standard = text(d.get("standard"), f"{path}.standard", required=True)
@@ -62,7 +65,7 @@ def parse_ocpd(doc: object, path: str = "circuit.ocpd") -> Ocpd:
                     maximum=10_000.0, allow_none=False)
     assert rating is not None
     ocpd = Ocpd(standard=standard, curve=curve, rating_a=rating)
-    device_limit(ocpd, path)
+    check_device(ocpd, path)
     return ocpd
 
 
@@ -135,7 +138,7 @@ def parse_circuit(doc: object, path: str = "circuit") -> Circuit:
     )
 
 
-def _fuse(d: dict, kind: str, path: str) -> float | None:
+def _fuse(d: dict[str, Any], kind: str, path: str) -> float | None:
     fuse = number(d.get("fuse_a"), f"{path}.fuse_a", minimum=0.0, strict_min=True,
                   maximum=1000.0)
     if kind == "fcu":
@@ -172,7 +175,8 @@ def parse_outlet(doc: object, path: str) -> Outlet:
     )
 
 
-def _sized_list(value: object, path: str, most: int, *, required: bool = False) -> list:
+def _sized_list(value: object, path: str, most: int, *,
+                required: bool = False) -> list[Any]:
     if value is None and not required:
         return []
     if not isinstance(value, list):

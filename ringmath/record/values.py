@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 import re
+from typing import Any
 
 from ringmath.record.model import MAX_INSULATION_MOHM, MAX_READING_OHM, OL, IrValue
 
@@ -108,6 +109,7 @@ def number(value: object, path: str, *, minimum: float | None = None,
                               "one decimal point or comma)")
         number_ = float(text.replace(",", "."))
     else:
+        assert not isinstance(value, Oversize)  # refused as too long above
         number_ = float(value)  # int within MAX_INT_BITS, or float: cannot overflow
     if not math.isfinite(number_):
         raise RecordError(path, "format", f"{show(value)} is not a finite number")
@@ -146,7 +148,8 @@ def format_reading(value: float | None) -> float | str | None:
     return value
 
 
-def text(value: object, path: str, default: str = "", *, choices=None, required: bool = False,
+def text(value: object, path: str, default: str = "", *,
+         choices: tuple[str, ...] | None = None, required: bool = False,
          max_chars: int = MAX_TEXT_CHARS) -> str:
     """Text (a JSON string, or an integer written as text) stripped; RecordError naming
     ``path``: "missing", "type", "size", "choice"."""
@@ -168,7 +171,7 @@ def text(value: object, path: str, default: str = "", *, choices=None, required:
     return out
 
 
-def optional_choice(value: object, path: str, choices) -> str | None:
+def optional_choice(value: object, path: str, choices: tuple[str, ...]) -> str | None:
     """One of ``choices`` or None (for null or "")."""
     if value is None or value == "":
         return None
@@ -184,7 +187,7 @@ def flag(value: object, path: str, default: bool | None = None) -> bool | None:
     return value
 
 
-def obj(value: object, path: str, *, required: bool = True) -> dict:
+def obj(value: object, path: str, *, required: bool = True) -> dict[str, Any]:
     """A JSON object; {} for a missing optional one."""
     if value is None and not required:
         return {}

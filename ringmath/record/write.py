@@ -3,25 +3,27 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from ringmath.record.model import Circuit, Insulation, Outlet, Rcd, RingTest
 from ringmath.record.values import format_ir, format_reading
 
 
-def _rcd(rcd: Rcd | None) -> dict | None:
+def _rcd(rcd: Rcd | None) -> dict[str, Any] | None:
     if rcd is None:
         return None
     return {"rated_ma": rcd.rated_ma, "type": rcd.type, "trip_ms": rcd.trip_ms,
             "button_ok": rcd.button_ok}
 
 
-def _insulation(ins: Insulation | None) -> dict | None:
+def _insulation(ins: Insulation | None) -> dict[str, Any] | None:
     if ins is None:
         return None
     return {"test_v": ins.test_v, "ln_mohm": format_ir(ins.ln_mohm),
             "le_mohm": format_ir(ins.le_mohm), "ne_mohm": format_ir(ins.ne_mohm)}
 
 
-def circuit_document(c: Circuit) -> dict:
+def circuit_document(c: Circuit) -> dict[str, Any]:
     """The ``circuit`` block of a record."""
     return {
         "reference": c.reference, "description": c.description,
@@ -35,7 +37,7 @@ def circuit_document(c: Circuit) -> dict:
     }
 
 
-def outlet_document(o: Outlet) -> dict:
+def outlet_document(o: Outlet) -> dict[str, Any]:
     """One outlet of a record."""
     return {
         "id": o.id, "label": o.label, "kind": o.kind, "spur_from": o.spur_from,
@@ -48,7 +50,7 @@ def outlet_document(o: Outlet) -> dict:
     }
 
 
-def record_document(test: RingTest) -> dict:
+def record_document(test: RingTest) -> dict[str, Any]:
     """The whole circuit record as a plain JSON-able dict."""
     e = test.end_to_end
     return {

@@ -2,7 +2,9 @@
  * plain post. A reading goes into the outbox (static/js/outbox.js) and is sent at once when
  * there is a signal; the server's feedback and leading diagnosis then replace the card's in
  * place. Without a signal the card shows the reading as waiting, with the band the server
- * last gave for it. If the phone cannot store it, the card says so at once.
+ * last gave for it. If the phone cannot store it, the card says so at once. A reading that
+ * looks like a slipped decimal point is not stored: the server's two one-tap answers (the
+ * corrected value, or keep it as typed) appear on the card.
  */
 (function (root) {
   "use strict";
@@ -56,6 +58,18 @@
     return " Within the expected " + band + ".";
   }
 
+  /* The decimal-point question: the server's two one-tap answers on the card. */
+  function showSlip(card, form, html) {
+    var box = card.querySelector("[data-slip-box]");
+    if (!box || !html) return false;
+    showError(form, "");
+    box.innerHTML = html;
+    box.querySelectorAll("form").forEach(enhance);
+    var first = box.querySelector("button");
+    if (first) first.focus();
+    return true;
+  }
+
   function applyReply(card, reply) {
     RT.overlay.setValue(card, reply.value, false);
     card.setAttribute("data-server-value", util.ohm(reply.value));
@@ -63,6 +77,8 @@
     if (feedback && reply.html) feedback.innerHTML = reply.html.feedback;
     var label = card.querySelector("form label");
     if (label) label.textContent = "Correct the reading (Ω)";
+    var slipBox = card.querySelector("[data-slip-box]");
+    if (slipBox) slipBox.innerHTML = "";
     var leading = document.getElementById("leading");
     if (leading && reply.html) leading.innerHTML = reply.html.leading;
     note(card, "");
@@ -79,6 +95,11 @@
     if (d.state === "sent" && d.item.kind === "reading") {
       applyReply(entry.card, d.item.reply || {});
       if (entry.focus && d.item.reply) focusNext(d.item.reply.next_anchor);
+    } else if (d.state === "question") {
+      RT.overlay.restore(entry.card);
+      note(entry.card, "");
+      var html = d.item.reply && d.item.reply.html && d.item.reply.html.slip;
+      if (!showSlip(entry.card, entry.form, html)) showError(entry.form, d.item.reason);
     } else if (d.state === "refused") {
       RT.overlay.restore(entry.card); // nothing was stored: the card shows what the server has
       note(entry.card, "");
@@ -101,15 +122,21 @@
     var clientKey = card.getAttribute("data-client-key");
     if (clientKey && card.getAttribute("data-outlet")) clientKey = null; // it has its key now
     var idInput = form.querySelector('input[name="client_id"]');
-    var body = { step: field, outlet: key, value: value, client_id: idInput.value || util.newClientId() };
+    var keep = form.querySelector('input[name="keep"]');
+    var body = { step: field, outlet: key, value: value,
+      client_id: idInput.value || util.newClientId(), keep: !!keep && keep.value === "1" };
     var where = key ? " at outlet " + key : clientKey ? " at the new outlet" : "";
     var words = (util.NAMES[field] || field) + where + " = " + value;
     var entry = RT.forms.item("reading", body, words, RT.forms.target("reading", field,
       key || clientKey), clientKey);
     RT.forms.queue(entry).then(function () {
-      pending[entry.id] = { card: card, form: form, focus: true };
-      idInput.value = util.newClientId(); // the next reading from this form is a new write
-      input.value = "";
+      var main = card.querySelector("form.reading-form:not(.slip-form)") || form;
+      pending[entry.id] = { card: card, form: main, focus: true };
+      // the next reading from this card is a new write
+      card.querySelectorAll('input[name="client_id"]').forEach(function (i) { i.value = util.newClientId(); });
+      var slipBox = card.querySelector("[data-slip-box]");
+      if (slipBox && form.classList.contains("slip-form")) slipBox.innerHTML = "";
+      else input.value = "";
       RT.overlay.setValue(card, value, true);
       if (!navigator.onLine) {
         note(card, "Saved on this phone: " + words + ". It will be sent when back online." +
@@ -150,8 +177,18 @@
       event.detail.querySelectorAll("form").forEach(enhance);
     });
     root.addEventListener("ringtest:outbox", onOutbox);
-    var focused = document.querySelector(".reading.focus");
-    if (focused && !location.hash) focusNext(focused.id);
+    // The card the server marked (a new outlet's, or the first reading still due) takes the
+    // focus. A URL fragment (#r-ln-c) names a card too; the browser moves the focus to the
+    // fragment once the page has loaded, so that focus waits for the load.
+    var target = location.hash && document.getElementById(location.hash.slice(1));
+    if (target && target.classList.contains("reading")) {
+      root.addEventListener("load", function () {
+        root.setTimeout(function () { focusNext(target.id); }, 0);
+      });
+    } else {
+      var focused = document.querySelector(".reading.focus");
+      if (focused) focusNext(focused.id);
+    }
   }
 
   RT.app = { start: start };

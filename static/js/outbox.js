@@ -4,7 +4,8 @@
  * "outlet", "label", "step"), circuitId, jobId, body (the JSON the API takes), words (what
  * the user did, in words), target (what it changes: a new entry for the same target replaces
  * a refused one), needs (client id of an outlet made offline that this item refers to),
- * state ("waiting" | "refused" | "sent"), savedAt, sentAt, serverAt (the server's clock when
+ * state ("waiting" | "refused" | "question" (a likely slipped decimal point: the user
+ * answers) | "sent"), savedAt, sentAt, serverAt (the server's clock when
  * it took it), reason (why the server refused it), reply}.
  *
  * Items are tied to the user who made them: only that user's session sends them. Sent items
@@ -92,7 +93,8 @@
     item.savedAt = new Date().toISOString();
     return all().then(function (items) {
       var replaced = items.filter(function (old) {
-        return old.state === "refused" && item.target && old.target === item.target;
+        return (old.state === "refused" || old.state === "question") && item.target &&
+          old.target === item.target;
       });
       return tx("readwrite", function (store) {
         replaced.forEach(function (old) { store.delete(old.id); });

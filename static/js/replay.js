@@ -134,6 +134,18 @@
           });
         }
 
+        /* A reading that looks like a slipped decimal point: not stored, not refused either;
+         * it waits for the user's answer (the corrected value, or keep it as typed). */
+        function ask(item, data) {
+          var changes = { state: "question", reply: data,
+            reason: data.slip.question || "Decimal point slipped?" };
+          Object.keys(changes).forEach(function (k) { item[k] = changes[k]; });
+          report.asked = (report.asked || 0) + 1;
+          return RT.outbox.update(item.id, changes).then(function () {
+            notify({ item: item, state: "question" });
+          });
+        }
+
         function one(index, retried) {
           if (index >= mine.length) return Promise.resolve(report);
           var item = mine[index];
@@ -155,6 +167,9 @@
               });
             }
             if (answer.status === 401) { report.outcome = "login"; return report; }
+            if (answer.status === 422 && answer.data && answer.data.slip) {
+              return ask(item, answer.data).then(function () { return one(index + 1); });
+            }
             if (answer.status === 400 && !answer.json && !retried) {
               return session().then(function (fresh) {  // the form token expired
                 if (!fresh || fresh.user_id !== me.user_id) { report.outcome = "login"; return report; }

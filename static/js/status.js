@@ -114,6 +114,42 @@
     box.appendChild(list);
   }
 
+  /* The decimal-point question answered from the list: the same reading, sent again with the
+   * corrected value or kept as typed. */
+  function answer(item, value, keep) {
+    var id = util.newClientId();
+    var body = JSON.parse(JSON.stringify(item.body));
+    body.value = value;
+    body.keep = keep;
+    body.client_id = id;
+    var next = { id: id, userId: item.userId, userName: item.userName, kind: item.kind,
+      circuitId: item.circuitId, jobId: item.jobId, body: body, needs: item.needs,
+      words: item.words.replace(/= .*$/, "= " + value), target: item.target };
+    RT.outbox.add(next).then(function () { return RT.replay.run(); }).then(refresh);
+  }
+
+  function drawQuestions(items, me) {
+    var asked = items.filter(function (i) { return i.state === "question" && mine(i, me); });
+    var box = document.getElementById("outbox-questions");
+    var open = asked.filter(function (i) {  // a card on this page asks itself
+      var card = RT.overlay && RT.overlay.findCard(i.body.step, i.body.outlet || null, i.needs);
+      return !(card && card.querySelector("[data-slip]")) ||
+        (RT.overlay.page() || {}).circuitId !== i.circuitId;
+    });
+    if (!open.length) { if (box) box.remove(); return; }
+    box = node("outbox-questions", "section");
+    box.className = "flash flash-warning outbox-questions";
+    box.textContent = "";
+    open.forEach(function (item) {
+      var slip = (item.reply && item.reply.slip) || {};
+      var p = document.createElement("p");
+      text(p, ["Not stored yet, your answer is needed: " + item.words + ". " + item.reason + " ",
+        { button: util.ohm(slip.suggested), onclick: function () { answer(item, String(slip.suggested), false); } }, " ",
+        { button: "keep " + util.ohm(slip.typed), onclick: function () { answer(item, String(slip.typed), true); } }]);
+      box.appendChild(p);
+    });
+  }
+
   function discard(item) {
     RT.outbox.remove(item.id).then(refresh);
   }
@@ -174,6 +210,7 @@
     return RT.outbox.all().then(function (items) {
       drawWaiting(items, me);
       drawRefused(items, me);
+      drawQuestions(items, me);
       drawHeld(items, me);
       if (!me && items.some(function (i) { return i.state === "waiting"; }) &&
           !/\/login\/?$/.test(location.pathname)) {

@@ -76,7 +76,6 @@ def test_supervisor_cannot_test_or_create(app, supervisor, make_circuit, parse):
         supervisor.post(f"/circuits/{cid}/outlets", data={"label": "x", "kind": "fcu"}),
         supervisor.post(f"/circuits/{cid}/test/e2e/done"),
         supervisor.post(f"/circuits/{cid}/test/safety", data={"isolated": "y"}),
-        supervisor.post("/jobs/1/submit"),
     ]
     assert [r.status_code for r in refused] == [403] * len(refused)
     assert "Your role does not allow this" in parse(refused[0]).text

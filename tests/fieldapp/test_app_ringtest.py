@@ -195,9 +195,10 @@ def test_a_corrected_reading_keeps_its_history(app, tester, make_circuit, parse)
             .order_by(ChangeLog.id))]
     assert rows == [(None, "0.26"), ("0.26", "0.31")]
     history = parse(tester.get(f"/circuits/{cid}/history"))
-    cells = [row.select("td")[2].text for row in history.select("table.history tbody tr")
-             if "outlet a · ln" in row.text]
-    assert cells == ["0.26 → 0.31", "— → 0.26"]  # newest first, nothing lost
+    cells = [" ".join(row.select_one(".change").text.split())
+             for row in history.select("li.history-row")
+             if "outlet a · Kitchen" in row.text and "L–N" in row.text]
+    assert cells == ["0.26 → 0.31 Ω", "nothing → 0.26 Ω"]  # newest first, nothing lost
 
 
 def test_locked_job_refuses_readings(app, tester, make_circuit):

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import uuid
 
 import pytest
@@ -56,19 +57,21 @@ def test_every_edit_path_leaves_history(app, make_circuit, tester, supervisor, p
     seen = {(who, device, what, field, change) for _, who, device, what, field, change in rows}
     who = "Gethin Test-Tester"
     expected = {
-        (who, "phone A", "DB1/4", "safety isolated", "false → true"),
-        (who, "phone A", "DB1/4", "step 1 r1 (line)", "nothing → 0.52"),
-        (who, "phone A", "DB1/4", "step 1 r1 (line)", "0.52 → 0.53"),
-        (who, "tablet B", "DB1/4 · outlet Kitchen by door (a)", "step 2 L–N", "nothing → OL"),
-        (who, "phone A", "DB1/4 · outlet Kitchen by door (a)", "label",
+        (who, "phone A", "DB1/4", "Safety: isolated", "no → yes"),
+        (who, "phone A", "DB1/4", "Step 1 r1 (line)", "nothing → 0.52 Ω"),
+        (who, "phone A", "DB1/4", "Step 1 r1 (line)", "0.52 → 0.53 Ω"),
+        (who, "tablet B", "DB1/4, outlet a · Kitchen by door", "Step 2 L–N", "nothing → OL"),
+        (who, "phone A", "DB1/4, outlet a · Kitchen by door", "Label",
          "Kitchen → Kitchen by door"),
-        (who, "phone A", "DB1/4 · outlet Hall (b)", "label", "nothing → Hall"),
+        (who, "phone A", "DB1/4, outlet b · Hall", "Label", "nothing → Hall"),
     }
     assert expected <= seen, sorted(seen)
-    assert any(r[3] == "DB1/4 · outlet Hall (b)" and r[4] == "deleted at"
-               and r[5].startswith("nothing → 20") for r in rows)
+    # a deletion says when, in local time to the minute (no seconds, no ISO text)
+    deleted = [r for r in rows if r[3] == "DB1/4, outlet b · Hall" and r[4] == "Deleted"]
+    assert len(deleted) == 1 and re.fullmatch(
+        r"nothing → \d{1,2} [A-Z][a-z]{2} \d{4} \d\d:\d\d", deleted[0][5]), deleted
     # newest first
-    assert rows[0][4] == "deleted at"
+    assert rows[0][4] == "Deleted"
 
 
 def test_job_and_circuit_details_and_decisions_leave_history(app, make_circuit, tester,
@@ -88,10 +91,10 @@ def test_job_and_circuit_details_and_decisions_leave_history(app, make_circuit, 
                            data={"comment": "Add the landing socket."}).status_code == 302
     rows = history_rows(supervisor, parse, f"/review/jobs/{jid}/history")
     changes = {(r[1], r[4], r[5]) for r in rows}
-    assert ("Gethin Test-Tester", "site", "1 Test Row → 7 Renamed Court") in changes
-    assert ("Gethin Test-Tester", "status", "in_progress → submitted") in changes
-    assert ("Hywel Test-Supervisor", "status", "submitted → returned") in changes
-    assert ("Hywel Test-Supervisor", "review comment", "nothing → Add the landing socket.") \
+    assert ("Gethin Test-Tester", "Site", "1 Test Row → 7 Renamed Court") in changes
+    assert ("Gethin Test-Tester", "Status", "in progress → submitted") in changes
+    assert ("Hywel Test-Supervisor", "Status", "submitted → returned to the tester") in changes
+    assert ("Hywel Test-Supervisor", "Review comment", "nothing → Add the landing socket.") \
         in changes
 
 
@@ -106,11 +109,11 @@ def test_history_of_one_reading(app, make_circuit, tester, supervisor, parse):
         assert response.status_code == 200
     url = f"/review/jobs/{jid}/history?outlet={outlets['b']}&field=le"
     rows = history_rows(supervisor, parse, url)
-    assert [r[5] for r in rows] == ["0.36 → 0.37", "0.35 → 0.36", "nothing → 0.35"]
-    assert {r[3] for r in rows} == {"DB1/4 · outlet Hall (b)"}
-    assert {r[4] for r in rows} == {"step 3 L–CPC"}
+    assert [r[5] for r in rows] == ["0.36 → 0.37 Ω", "0.35 → 0.36 Ω", "nothing → 0.35 Ω"]
+    assert {r[3] for r in rows} == {"DB1/4, outlet b · Hall"}
+    assert {r[4] for r in rows} == {"Step 3 L–CPC"}
     step1 = history_rows(supervisor, parse, f"/review/jobs/{jid}/history?circuit={cid}&field=r2")
-    assert [r[5] for r in step1] == ["nothing → 0.85"]
+    assert [r[5] for r in step1] == ["nothing → 0.85 Ω"]
     page = supervisor.get(url).get_data(as_text=True)
     assert "proved dead" in page  # the cautions are shown with the readings
 

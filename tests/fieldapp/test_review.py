@@ -349,10 +349,10 @@ def test_list_filters_search_and_flags(app, make_circuit, supervisor, parse):
     rows = {li.find("strong").text: " ".join(li.get_text(" ").split())
             for li in parse(supervisor.get("/review/")).select("li.job-row")}
     assert set(rows) == {"T-1", "T-2", "T-3"}
-    assert "no flags" in rows["T-1"]
+    assert "no problems" in rows["T-1"]
     # Ze 0.95 + R1+R2 about 0.35 > 1.10 Ω, the measured-value limit for 32 A type B
     # (BS 7671:2018 Table 41.3, 80 % rule of thumb)
-    assert "Zs over limit" in rows["T-2"] and "no flags" not in rows["T-2"]
+    assert "Zs fails at 2 outlets" in rows["T-2"] and "no problems" not in rows["T-2"]
     assert "2 readings still due" in rows["T-3"]
     order = [li.find("strong").text for li in parse(supervisor.get("/review/")).select(
         "li.job-row")]
@@ -369,22 +369,27 @@ def test_list_flags_a_fault_from_a_demo_job(app, tester, supervisor, parse):
     doc = json.loads((ROOT / "demo_jobs" / "02-bridged-ring.json").read_text())
     assert tester.post("/api/jobs/import", json=doc).status_code == 201
     row = parse(supervisor.get("/review/")).select_one("li.job-row")
-    assert "fault interconnection" in " ".join(row.get_text().split())
+    text = " ".join(row.get_text().split())
+    assert "not satisfactory DB2/2: Assessment: Investigate" in text, text
+    assert "bridged" in text and "safe isolation not confirmed" in text
+    assert "findings" in text and "no problems" not in text
 
 
-def test_flags_from_hand_made_diagnoses():
-    def diag(findings=(), points=(), readings=(), zs=None, zs_max=1.1):
-        return {"findings": list(findings), "points": list(points), "readings": list(readings),
-                "circuit": {"zs_ohm": zs, "zs_max_ohm": zs_max}}
+def test_flags_count_the_sign_off_problems_by_kind():
+    from fieldapp.review.gate import CircuitProblems, Problem
 
-    fault = {"code": "open_conductor", "severity": "fault"}
-    assert job_flags([], []) == {"faults": [], "zs_over": False, "missing": 1,
-                                 "all_clear": False}
-    assert job_flags([diag(zs=0.6)], [None])["all_clear"] is True
-    assert job_flags([diag([fault, fault])], [None])["faults"] == ["open_conductor"]
-    assert job_flags([diag(zs=1.2)], [None])["zs_over"] is True
-    assert job_flags([diag(points=[{"ok": False}])], [None])["zs_over"] is True
-    assert job_flags([diag([{"code": "zs_over_limit", "severity": "fault"}])],
-                     [None]) == {"faults": [], "zs_over": True, "missing": 0, "all_clear": False}
-    assert job_flags([diag(readings=[{"status": "pending"}] * 3), None],
-                     [None, "unknown device"])["missing"] == 4
+    assert job_flags([]) == {"faults": [], "findings": 0, "zs_fail": 0, "zs_unproved": 0,
+                             "missing": 0, "safety": 0, "despite": [], "problems": 0,
+                             "all_clear": True}
+    groups = [CircuitProblems("DB1/1", (
+        Problem("verdict", "Assessment: Investigate, not Satisfactory."),
+        Problem("finding", "Fault: a bridge"), Problem("finding", "Check: Ze declared"),
+        Problem("zs_fail", "Zs fails at No. 2"), Problem("zs_unproved", "x", count=3))),
+        CircuitProblems("DB1/2", (Problem("steps_missing", "Step 2", count=4),
+                                  Problem("steps_missing", "Step 1", count=1),
+                                  Problem("safety", "not ticked")))]
+    flags = job_flags(groups, "site visit booked", None)
+    assert flags["faults"] == ["DB1/1: Assessment: Investigate, not Satisfactory."]
+    assert (flags["findings"], flags["zs_fail"], flags["zs_unproved"], flags["missing"],
+            flags["safety"], flags["problems"]) == (2, 1, 3, 5, 1, 8)
+    assert flags["despite"] == ["submitted"] and flags["all_clear"] is False

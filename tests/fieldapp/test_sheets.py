@@ -19,8 +19,11 @@ def pdf_text(data: bytes) -> str:
 def test_sheet_of_an_approved_job(app, tester, supervisor):
     jid = tester.post("/api/jobs/import", json=json.loads(HANDMADE.read_text())).get_json()[
         "job_id"]
-    assert tester.post(f"/jobs/{jid}/submit").status_code == 302
-    assert supervisor.post(f"/review/jobs/{jid}/approve", data={"note": "Ok"}).status_code == 302
+    # the hand-made job has an open cpc and a step 3 missing: sign-off needs reasons
+    assert tester.post(f"/jobs/{jid}/submit", data={
+        "reason": "Client to book the cpc repair"}).status_code == 302
+    assert supervisor.post(f"/review/jobs/{jid}/approve", data={
+        "note": "Ok", "reason": "Remedial work ordered"}).status_code == 302
     response = tester.get(f"/jobs/{jid}/sheet.pdf")
     assert response.status_code == 200 and response.mimetype == "application/pdf"
     assert response.data.startswith(b"%PDF-")

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import base64
 import io
 import json
 from pathlib import Path
@@ -172,19 +173,30 @@ def drawn_numbers(picture) -> dict[str, set[str]]:
     return drawn
 
 
+def printed_svg(uri: str) -> str:
+    """The printed sketch's SVG from its data URI."""
+    prefix = "data:image/svg+xml;base64,"
+    assert uri.startswith(prefix)
+    return base64.b64decode(uri[len(prefix):]).decode()
+
+
 def test_outlets_carry_the_ring_pictures_numbers(printed):
     doc, diagnoses, _, pages, _ = printed
-    ctx = sheet_context(doc, diagnoses, PEOPLE)
+    screen = sheet_context(doc, diagnoses, PEOPLE)
+    paper = sheet_context(doc, diagnoses, PEOPLE, drawing="print")
     flat = " ".join(" ".join(pages).split())
-    for c, diagnosis in zip(ctx["circuits"], diagnoses, strict=True):
+    for c, p, diagnosis in zip(screen["circuits"], paper["circuits"], diagnoses, strict=True):
         numbers = {o["id"]: o["n"] for o in c["outlets"]}
         assert sorted(numbers.values()) == list(range(1, len(numbers) + 1))
-        assert [k["n"] for k in c["key"]] == sorted(numbers.values())
-        # the printed sketch and the review page's picture (with its own key) alike
-        for picture in (c["sketch"], c["picture"]):
-            drawn = drawn_numbers(picture)
-            for o in c["outlets"]:
-                assert drawn[o["label"] or o["id"]] == {str(o["n"])}, o["id"]
+        # the review page's picture names each outlet by the schedule's number
+        drawn = drawn_numbers(c["picture"])
+        for o in c["outlets"]:
+            assert drawn[o["label"] or o["id"]] == {str(o["n"])}, o["id"]
+        # the printed sketch carries the same numbers, without the screen's tooltips
+        svg = printed_svg(p["sketch"])
+        texts = {t.get_text() for t in BeautifulSoup(svg, "html.parser").find_all("text")}
+        assert {str(n) for n in numbers.values()} <= texts
+        assert "<title>" not in svg and p["picture"] == "" and c["sketch"] == ""
         for o, rec in zip(c["outlets"], doc["circuits"][c["index"] - 1]["outlets"], strict=True):
             if rec["spur_from"]:
                 assert o["fed"].startswith(f"spur from No. {numbers[rec['spur_from']]} ")
@@ -192,6 +204,19 @@ def test_outlets_carry_the_ring_pictures_numbers(printed):
             for oid in finding["outlets"]:
                 assert f"No. {numbers[oid]} ({oid})" in words["outlets"]
         assert f"{c['index']}. {c['reference']}" in flat  # the overview on page 1
+
+
+def test_one_drawing_per_circuit(monkeypatch):
+    from fieldapp.sheets import context
+
+    calls = []
+    real = context.ring_picture
+    monkeypatch.setattr(context, "ring_picture",
+                        lambda d, **kw: calls.append(kw) or real(d, **kw))
+    doc = as_job_document(HANDMADE)
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    sheet_html(doc, diagnoses, PEOPLE)
+    assert calls == [{"key": False}] * len(doc["circuits"])
 
 
 def test_zs_over_the_limit_prints_fail_in_words():

@@ -99,6 +99,7 @@ def test_every_imported_value_is_logged_from_nothing(app, tester):
             (ChangeLog.entity == "job") & (ChangeLog.entity_id == jid)))).all()
         assert rows and all(r.old_value is None for r in rows)
         assert {r.user.username for r in rows} == {"test"}
+        assert {r.device for r in rows} == {"imported from a file"}  # each marked imported
         logged = {(r.entity, r.entity_id, r.field): r.new_value for r in rows}
         for circuit, rec in zip(circuits, doc["circuits"], strict=True):
             for name, value in rec["end_to_end"].items():
@@ -266,7 +267,7 @@ def test_an_import_never_says_a_person_confirmed_safe_isolation(app, apprentice,
     text = " ".join(page.get_text().split())
     assert "Confirmed by" not in text and "Hywel" not in text
     assert "imported from a file by Ffion Test-Apprentice at" in text
-    assert "readings were not taken in this app" in text
+    assert "readings that came with the file were not taken in this app" in text
     assert page.select_one('input[name="isolated"]') is not None  # still to be confirmed
     assert "imported from a file by Ffion" in " ".join(
         parse(apprentice.get(f"/circuits/{cid}/results")).get_text().split())
@@ -341,3 +342,19 @@ def test_the_import_form_keeps_csrf(make_app, login):
         content_type="multipart/form-data")
     assert response.status_code == 400
     assert counts(app) == before
+
+
+def test_readings_of_an_imported_circuit_are_marked_imported_in_the_history(app, tester,
+                                                                           parse):
+    from fieldapp.extensions import db
+    from fieldapp.models import Job
+
+    jid = tester.post("/api/jobs/import", json=_doc()).get_json()["job_id"]
+    with app.app_context():
+        cid = db.session.get(Job, jid).circuits[0].id
+    tester.post(f"/circuits/{cid}/test/safety", data={"isolated": "y", "locked_off": "y",
+                                                      "proved_dead": "y"})
+    tester.post(f"/api/circuits/{cid}/readings", json={
+        "step": "r1", "value": "0.53", "client_id": "after-import-01", "device": "my phone"})
+    text = " ".join(parse(tester.get(f"/circuits/{cid}/history")).get_text().split())
+    assert "imported from a file" in text and "my phone" in text

@@ -263,12 +263,12 @@ def test_bad_input_names_the_field(call, field):
 def test_reading_status_and_findings_agree(step):
     # Sweep one end-to-end reading through its band: the readings list and the findings must
     # flag exactly the same values.
-    code = {"rn": "ends_mismatch", "r2": "cpc_ratio"}[step]
+    codes = {"rn": {"ends_mismatch"}, "r2": {"cpc_ratio", "parallel_earth_path"}}[step]
     flagged = []
     for hundredths in range(40, 110):
         test = record(end_to_end={**E2E, step: hundredths / 100})
         status = _by(test, None, step)["status"]
-        found = code in _codes(checks.end_to_end_findings(test))
+        found = bool(codes & set(_codes(checks.end_to_end_findings(test))))
         assert (status != "ok") == found, hundredths
         flagged.append(found)
     assert any(flagged) and not all(flagged)
@@ -281,3 +281,20 @@ def test_cable_length_status_and_finding_agree():
                       cable_length_m=50)
         found = "cable_length" in _codes(checks.end_to_end_findings(test))
         assert (_by(test, None, "r1")["status"] != "ok") == found, r1
+
+
+@pytest.mark.parametrize(("cpc_kind", "severity"), [("cable_core", "warning"),
+                                                    ("conduit", "info")])
+def test_tiny_r2_is_a_parallel_earth_path_not_a_joint(cpc_kind, severity):
+    # Steel conduit as cpc: r2 0.03 Ω against r1 0.31 Ω (2.5/1.5 cable would give 0.51 Ω,
+    # BS EN 60228 12.10/7.41 mΩ/m). The tolerance comes from the expected r2, so it fires.
+    test = record(end_to_end={"r1": 0.31, "rn": 0.31, "r2": 0.03}, cpc_kind=cpc_kind)
+    found = [f for f in checks.end_to_end_findings(test) if f.code == "parallel_earth_path"]
+    assert [f.severity for f in found] == [severity]
+    assert "Zs" in found[0].message and "0.03" in found[0].message
+    assert checks.cpc_ratio_tolerance(0.31, 0.31 * 1.633) < 0.2
+
+
+def test_declared_metallic_cpc_with_normal_r2_raises_nothing():
+    test = record(end_to_end={"r1": 0.52, "rn": 0.52, "r2": 0.70}, cpc_kind="armour")
+    assert "cpc_ratio" not in _codes(checks.end_to_end_findings(test))

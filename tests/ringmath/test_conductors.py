@@ -10,7 +10,7 @@ from ringmath.conductors import cpc_ratio, expected_end_to_end_ohm, resistance_m
 @pytest.mark.parametrize(
     ("csa_mm2", "mohm_per_m"),
     [
-        # BS EN 60228 maximum DC resistance at 20 °C, class 1/2 plain copper (from memory).
+        # IEC 60228 / BS EN 60228 Table 1, class 1/2 plain copper at 20 °C.
         (1.0, 18.10),
         (1.5, 12.10),
         (2.5, 7.41),
@@ -68,3 +68,59 @@ def test_end_to_end_rises_with_temperature():
 def test_bad_input_names_the_field(call, field):
     with pytest.raises(ValueError, match=rf"^{field}:"):
         call()
+
+
+# IEC 60228 / BS EN 60228 Table 1, maximum resistance at 20 °C (mΩ/m), stated independently
+# of the data file: 1.0 18.1, 1.5 12.1, 2.5 7.41, 4 4.61, 6 3.08, 10 1.83 (16 mm² 1.15 as
+# reproduced in the Cembre catalogue's IEC 60228:2004 tables).
+BS_EN_60228_TABLE_1 = {1.0: 18.1, 1.5: 12.1, 2.5: 7.41, 4.0: 4.61, 6.0: 3.08, 10.0: 1.83,
+                       16.0: 1.15}
+
+
+def test_every_copper_row_against_the_standard():
+    from ringmath.tables import COPPER
+
+    assert set(COPPER) == set(BS_EN_60228_TABLE_1)
+    for size, row in COPPER.items():
+        assert row.mohm_per_m_20c == BS_EN_60228_TABLE_1[size]
+        assert row.where_checked and "60228" in row.edition
+    # physical invariant: resistance falls as the cross-section grows, roughly as 1/area
+    sizes = sorted(COPPER)
+    values = [COPPER[s].mohm_per_m_20c for s in sizes]
+    assert values == sorted(values, reverse=True)
+    assert all(0.9 < COPPER[s].mohm_per_m_20c * s / 18.1 < 1.1 for s in sizes)
+
+
+def test_tables_are_read_only():
+    from ringmath.tables import COPPER, FUSES
+
+    with pytest.raises(TypeError):
+        COPPER[2.0] = None  # type: ignore[index]
+    with pytest.raises(TypeError):
+        FUSES[("BS 1362", 13)] = None  # type: ignore[index]
+
+
+def test_the_one_r2_figure():
+    from ringmath.conductors import r2_per_r1
+
+    # 12.10 / 7.41 = 1.633 for 2.5/1.5 mm²; 18.1 / 12.1 = 1.496 for 1.5/1.0 mm².
+    assert r2_per_r1() == 1.633
+    assert r2_per_r1(1.5, 1.0) == 1.496
+
+
+def test_spur_cable_defaults_to_the_twin_and_earth_companion():
+    from ringmath.conductors import spur_cable
+
+    # a 1.5 mm² spur off a 2.5/1.5 ring is 1.5/1.0 twin and earth, not 1.5/1.5
+    cable = spur_cable(1.5, None, ring_live_csa_mm2=2.5)
+    assert (cable.live_csa_mm2, cable.cpc_csa_mm2) == (1.5, 1.0)
+    assert cable.cpc_ratio == pytest.approx(18.1 / 12.1)
+    assert cable.le_per_ln == pytest.approx((12.1 + 18.1) / (2 * 12.1))
+    # nothing recorded: the ring's live size with its companion
+    assert (spur_cable(ring_live_csa_mm2=2.5).cpc_csa_mm2, spur_cable().le_per_ln) == (
+        1.5, pytest.approx((7.41 + 12.1) / (2 * 7.41)))
+    assert spur_cable(2.5, 2.5).le_per_ln == 1.0
+    with pytest.raises(ValueError, match="^live_csa_mm2"):
+        spur_cable(0.75)
+    with pytest.raises(ValueError, match="^spur_cpc_csa_mm2"):
+        spur_cable(2.5, 0.75)

@@ -1,4 +1,4 @@
-"""R1+R2 and predicted Zs at every point: safe upper bounds and the device limits."""
+"""R1+R2 and predicted Zs at every point: as measured, safe upper bounds, the device limits."""
 
 import numpy as np
 import pytest
@@ -7,8 +7,8 @@ from ring_records import point, record, resistance_between
 from ringmath import zs
 from ringmath.meter import upper_bound_ohm
 
-LIVE_OHM_PER_M = 7.41e-3  # BS EN 60228, 2.5 mm² (from memory)
-CPC_OHM_PER_M = 12.10e-3  # BS EN 60228, 1.5 mm² (from memory)
+LIVE_OHM_PER_M = 7.41e-3  # IEC 60228 Table 1, 2.5 mm²
+CPC_OHM_PER_M = 12.10e-3  # IEC 60228 Table 1, 1.5 mm²
 
 
 def _points(test):
@@ -20,19 +20,43 @@ def _codes(test):
 
 
 def test_measured_point_worked_example():
-    # le 0.34 Ω: upper bound (0.34 + 0.01 + 0.005) / 0.99 = 0.359 -> 0.36 Ω (meter model);
-    # Zs = Ze + R1+R2 = 0.35 + 0.36 = 0.71 Ω against 1.10 Ω (32 A type B, 80 % of the
-    # 1.37 Ω of BS 7671:2018 Table 41.3).
+    # The hand check (IET Guidance Note 3 method, Zs = Ze + R1+R2): Ze 0.35 + 0.34 = 0.69 Ω
+    # against 1.10 Ω (32 A type B, 80 % of the 1.37 Ω of BS 7671:2018 Table 41.3). The safe
+    # bound behind the reading: (0.34 + 0.01 + 0.005) / 0.99 = 0.359 -> 0.36 Ω (meter model).
     p = _points(record([point("a", ln=0.26, le=0.34)]))["a"]
-    assert (p["r1r2_ohm"], p["r1r2_source"], p["zs_ohm"], p["zs_max_ohm"], p["ok"]) == (
-        0.36, "measured", 0.71, 1.10, True)
+    assert (p["r1r2_ohm"], p["r1r2_source"], p["r1r2_estimated"], p["zs_ohm"], p["zs_max_ohm"],
+            p["ok"], p["zs_marginal"]) == (0.34, "measured", False, 0.69, 1.10, True, False)
+    assert p["r1r2_bound_ohm"] == 0.36
     assert (p["protected_by"], p["ln_ohm"], p["le_ohm"]) == ("circuit", 0.26, 0.34)
+
+
+def test_terminal_re_measure_is_the_r1r2():
+    p = _points(record([point("a", ln=0.26, le=0.41, le_terminals=0.34, taken_at="front")]))["a"]
+    assert (p["r1r2_ohm"], p["zs_ohm"], p["le_ohm"], p["le_terminals_ohm"]) == (
+        0.34, 0.69, 0.41, 0.34)
+
+
+@pytest.mark.parametrize(("le", "ze", "ok", "marginal"), [
+    # limit 1.10 Ω; bound(le) = ceil((le + 0.015) / 0.99)
+    (0.74, 0.35, True, True),    # 0.35 + 0.74 = 1.09 passes; 0.35 + bound 0.77 = 1.12 reaches
+    (0.72, 0.35, True, True),    # 1.07 passes; 0.35 + 0.75 = 1.10 reaches the limit
+    (0.70, 0.35, True, False),   # 1.05; 0.35 + 0.73 = 1.08 stays below
+    (0.76, 0.35, False, False),  # 1.11 fails outright: a fail, not a marginal pass
+])
+def test_marginal_is_its_own_judgement(le, ze, ok, marginal):
+    test = record([point("a", ln=0.3, le=le)], ze_ohm=ze)
+    p = _points(test)["a"]
+    assert (p["ok"], p["zs_marginal"]) == (ok, marginal)
+    codes = [c for c, _ in _codes(test)]
+    assert ("zs_marginal" in codes) == marginal
+    assert ("zs_over_limit" in codes) == (not ok)
 
 
 def test_ring_point_without_step_3_is_the_healthy_maximum():
     # (r1 + r2) / 4 = 0.3425 Ω, raised for meter error: 0.3611 -> 0.37 Ω.
     p = _points(record([point("a", ln=0.26)]))["a"]
-    assert (p["r1r2_ohm"], p["r1r2_source"], p["zs_ohm"]) == (0.37, "estimated", 0.72)
+    assert (p["r1r2_ohm"], p["r1r2_source"], p["r1r2_estimated"], p["zs_ohm"]) == (
+        0.37, "estimated", True, 0.72)
 
 
 def test_spur_without_step_3_adds_its_rise():
@@ -53,18 +77,19 @@ def test_open_step_3_fails_without_a_value():
 
 
 def test_beyond_an_fcu_uses_the_fuse_limit():
-    # BS 1362 13 A: 2.30 Ω tabulated, 1.84 Ω measured limit (BS 7671:2018 Table 41.2).
+    # BS 1362 13 A: 2.18 Ω checked figure, 1.74 Ω measured limit (ringmath/data/zs_fuses.csv).
     test = record([point("a", ln=0.26, le=0.34), point("f", "a", kind="fcu", fuse_a=13),
                    point("x", "f", kind="fixed_equipment", ln=0.9, le=1.2)])
     points = _points(test)
     assert (points["f"]["protected_by"], points["f"]["zs_max_ohm"]) == ("circuit", 1.10)
     x = points["x"]
-    # 0.35 + upper(1.2) = 0.35 + 1.23 = 1.58 Ω: over the circuit's 1.10 Ω, within the fuse's.
-    assert (x["protected_by"], x["zs_max_ohm"], x["zs_ohm"], x["ok"]) == ("fcu:f", 1.84, 1.58,
+    # 0.35 + 1.2 = 1.55 Ω: over the circuit's 1.10 Ω, within the fuse's 1.74 Ω.
+    assert (x["protected_by"], x["zs_max_ohm"], x["zs_ohm"], x["ok"]) == ("fcu:f", 1.74, 1.55,
                                                                           True)
     # The circuit figure leaves out the point behind the FCU fuse: its worst point is a.
     summary = zs.point_values(test)[0]
-    assert (summary["r1r2_ohm"], summary["zs_ohm"]) == (0.36, 0.71)
+    assert (summary["r1r2_ohm"], summary["zs_ohm"]) == (0.34, 0.69)
+    assert summary["zs_ok"] is None  # f has no readings yet: not proved
 
 
 def test_fcu_fuse_without_a_tabulated_figure():
@@ -78,9 +103,9 @@ def test_fcu_fuse_without_a_tabulated_figure():
 def test_circuit_summary():
     summary, _ = zs.point_values(record([point("a", le=0.34), point("b", le=0.30)]))
     assert summary == {
-        "r1r2_ohm": 0.36, "zs_ohm": 0.71, "zs_max_ohm": 1.10, "zs_tabulated_ohm": 1.37,
+        "r1r2_ohm": 0.34, "zs_ohm": 0.69, "zs_max_ohm": 1.10, "zs_tabulated_ohm": 1.37,
         "device": "32 A type B circuit-breaker (BS EN 60898)",
-        "limit_source": summary["limit_source"],
+        "limit_source": summary["limit_source"], "zs_ok": True, "insulation": None, "rcd": None,
     }
     assert "Table 41.3" in summary["limit_source"]
 
@@ -129,7 +154,8 @@ def test_ze_and_rcd_findings(circuit, expected):
 
 def test_missing_ze_leaves_zs_unknown():
     p = _points(record([point("a", le=0.34)], ze_ohm=None))["a"]
-    assert (p["r1r2_ohm"], p["zs_ohm"], p["ok"]) == (0.36, None, None)
+    assert (p["r1r2_ohm"], p["zs_ohm"], p["ok"]) == (0.34, None, None)
+    assert zs.point_values(record([point("a", le=0.34)], ze_ohm=None))[0]["zs_ok"] is None
 
 
 def test_tt_with_rcd_uses_the_rcd_limit():
@@ -145,7 +171,7 @@ def test_tt_with_rcd_uses_the_rcd_limit():
     [
         ({"standard": "BS EN 60898", "curve": "B", "rating_a": 33}, r"circuit\.ocpd\.rating_a"),
         ({"standard": "BS EN 60898", "curve": "K", "rating_a": 32}, r"circuit\.ocpd\.curve"),
-        ({"standard": "BS 1361", "curve": None, "rating_a": 30}, r"circuit\.ocpd\.standard"),
+        ({"standard": "BS 88-6", "curve": None, "rating_a": 30}, r"circuit\.ocpd\.standard"),
     ],
 )
 def test_unknown_device_names_the_field(ocpd, field):
@@ -218,7 +244,7 @@ def test_r1r2_is_never_below_the_in_service_value(seed):
         for k, oid in ids.items():
             # Rayleigh monotonicity: joining the four ends can only lower the resistance.
             assert net["le"][k] >= net["service"][k] - 1e-12
-            assert points[oid]["r1r2_ohm"] >= net["service"][k], (with_step_3, oid)
+            assert points[oid]["r1r2_bound_ohm"] >= net["service"][k], (with_step_3, oid)
             assert points[oid]["r1r2_source"] == ("measured" if with_step_3 else "estimated")
 
 
@@ -226,6 +252,7 @@ def test_every_ohm_value_has_two_decimals():
     test = record([point("a", ln=0.263, le=0.347), point("s", "a", ln=0.41)], ze_ohm=0.337)
     summary, points = zs.point_values(test)
     values = [summary[k] for k in ("r1r2_ohm", "zs_ohm", "zs_max_ohm")]
-    values += [p[k] for p in points for k in ("r1r2_ohm", "zs_ohm", "zs_max_ohm")]
+    values += [p[k] for p in points for k in ("r1r2_ohm", "r1r2_bound_ohm", "zs_ohm",
+                                              "zs_max_ohm")]
     assert all(v == round(v, 2) for v in values)
-    assert upper_bound_ohm(0.347) == _points(test)["a"]["r1r2_ohm"]
+    assert upper_bound_ohm(0.347) == _points(test)["a"]["r1r2_bound_ohm"]

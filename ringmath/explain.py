@@ -1,0 +1,157 @@
+"""The winning explanation in plain words: findings for whole-ring faults, outlet faults, the
+test's own set-up errors and the smallest fault the readings could show.
+
+Severity is graded: "fault" only where the circuit is unsafe or the ring is not a ring;
+a joint adding less than JOINT_FAULT_OHM, a socket contact or a set-up error is a "warning"
+with the check to make.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ringmath import messages, meter, setup_messages
+from ringmath.conductors import resistance_mohm_per_m
+from ringmath.findings import Finding
+from ringmath.likelihood import Prepared
+from ringmath.local import LocalFault
+from ringmath.network import Layout, step_resistance
+from ringmath.setup_errors import Setup
+
+#: A joint adding at least this much is a fault (it can overheat under load); below it the
+#: readings call for a check of the terminations (common practice: r1 and rn within 0.05 Ω;
+#: 0.06-0.10 Ω is noted and the terminations checked).
+JOINT_FAULT_OHM = 0.10
+#: Set-up offsets beyond this (ohms, either sign) call for a re-test: up to it a sound ring
+#: is still judged sound (common practice tolerates readings within 0.05 Ω); from
+#: OFFSET_NOTE_OHM they are noted. The estimate carries about 0.01 Ω of error itself.
+OFFSET_RETEST_OHM = 0.065
+OFFSET_NOTE_OHM = 0.025
+#: Gains between steps worth a note (fraction).
+GAIN_NOTE = 0.03
+#: Standard deviations a fault must move a reading by to be seen among many readings.
+DETECT_SIGMAS = 4.0
+_BRIDGE = Layout(3, (False, False, False), extras=((1, 2),))
+
+
+def joint_severity(r_ohm: float) -> str:
+    """"fault" for a joint of at least JOINT_FAULT_OHM ohms, else "warning"."""
+    return "fault" if r_ohm >= JOINT_FAULT_OHM else "warning"
+
+
+def ratios_text(prep: Prepared) -> str:
+    """The measured relations between the steps, as read: median step 2 and step 3 against a
+    quarter of r1 + rn and of r1 + r2, and r2/r1 against the cable's ratio."""
+    r1, rn, r2 = prep.e2e_ohm
+    parts = []
+    for name, x, ref in (("step 2", prep.ln_ohm, (r1 + rn) / 4), ("step 3", prep.le_ohm,
+                                                                   (r1 + r2) / 4)):
+        x = x[np.isfinite(x)]
+        if x.size and np.isfinite(ref) and ref > 0:
+            parts.append(f"{name} readings median {np.median(x):.2f} Ω against "
+                         f"{ref:.2f} Ω expected, ×{np.median(x) / ref:.2f}")
+    if np.isfinite(r1) and np.isfinite(r2) and r1 > 0:
+        parts.append(f"r2/r1 = {r2 / r1:.2f}")
+    return "; ".join(parts) if parts else "no step 2 or 3 readings"
+
+
+def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | None:
+    """The finding for a set-up error, or None when it is too small to matter."""
+    ratios = ratios_text(prep)
+    if setup.kind == "scale":
+        msg, nxt = setup_messages.instrument(1 + setup.gain, ratios)
+        return Finding("setup_instrument", "warning", msg, nxt, confidence=confidence)
+    if setup.kind == "gain":
+        if abs(setup.gain) < GAIN_NOTE:
+            return None
+        msg, nxt = setup_messages.step_gain(setup.gain, ratios)
+        return Finding("setup_gain", "info", msg, nxt, confidence=confidence)
+    d = setup.offset_ohm
+    if abs(d) < OFFSET_NOTE_OHM:
+        return None
+    severity = "warning" if abs(d) >= OFFSET_RETEST_OHM else "info"
+    if setup.kind == "leads":
+        msg, nxt = setup_messages.lead_offset(d, ratios)
+        return Finding("setup_lead_offset", severity, msg, nxt, confidence=confidence)
+    step = setup.kind.split("_")[1]
+    msg, nxt = setup_messages.step_offset(step, d, ratios)
+    return Finding("setup_lead_offset_step", severity, msg, nxt, step=None if step == "r" else step,
+                   confidence=confidence)
+
+
+def local_findings(prep: Prepared, faults: list[tuple[LocalFault, float]], names: dict,
+                   front: set[str]) -> list[Finding]:
+    """Findings for outlet faults with their confidences; socket contacts grouped in one."""
+    out: list[Finding] = []
+    contacts = [(lf, c) for lf, c in faults if lf.code == "setup_socket_contacts"]
+    if contacts:
+        ids = [lf.outlet for lf, _ in contacts]
+        msg, nxt = setup_messages.socket_contact([names.get(i, i) for i in ids],
+                                                 all(i in front for i in ids))
+        out.append(Finding("setup_socket_contacts", "warning", msg, nxt, tuple(ids),
+                           confidence=min(c for _, c in contacts)))
+    for lf, conf in faults:
+        name = names.get(lf.outlet, lf.outlet)
+        if lf.code == "setup_socket_contacts":
+            continue
+        if lf.code == "unrecorded_spur":
+            i = prep.ring_ids.index(lf.outlet)
+            msg, nxt = messages.unrecorded_spur(name, 2.0 * (lf.r_ohm or 0.0),
+                                                bool(np.isfinite(prep.ln_ohm[i])),
+                                                bool(np.isfinite(prep.le_ohm[i])))
+            out.append(Finding("unrecorded_spur", "fault", msg, nxt, (lf.outlet,),
+                               confidence=conf))
+        elif lf.code == "high_resistance_joint" and lf.swap is None and lf.tie is None:
+            msg, nxt = messages.joint(lf.conductor, lf.r_ohm or 0.0, [name], True,
+                                      at_outlet=True)
+            out.append(Finding("high_resistance_joint", joint_severity(lf.r_ohm or 0.0), msg,
+                               nxt, (lf.outlet,), conductor=lf.conductor, confidence=conf))
+        else:
+            for code, conductor, swap in ((lf.code, lf.conductor, lf.swap), lf.tie):
+                msg, nxt = messages.ol_pattern(name, code, conductor, swap)
+                if lf.tie:
+                    msg += " Both explanations fit these readings equally."
+                out.append(Finding(code, "fault", msg, nxt, (lf.outlet,), conductor=conductor,
+                                   confidence=conf))
+    return out
+
+
+def _bridge_across_one_m(prep: Prepared, sigma_ohm: float) -> float | None:
+    """Longest bridge cable (metres) across a single outlet mid-ring that still moves that
+    outlet's step 2 reading by DETECT_SIGMAS x sigma from what step 1 then implies; None when
+    even the shortest cannot (network solve, outlets evenly spaced)."""
+    n = max(len(prep.ring_ids), 2)
+    r1, rn, _ = prep.e2e_ohm
+    d = 1.0 / (n + 1)
+    fractions = np.geomspace(0.002, 1.0, 40)
+    b = len(fractions)
+    marks = np.tile([0.5, 0.5 - d, 0.5 + d], (b, 1))
+    ring = np.tile([r1, rn, r1], (b, 1))
+    extra = fractions[:, None]
+    ends = marks.copy()
+    ends[:, 0] = ends[:, 1]
+    unit = step_resistance(_BRIDGE, "e2e:line", ends, np.ones((b, 3)), extra_fraction=extra)
+    ln = step_resistance(_BRIDGE, "ln", marks, ring, extra_fraction=extra)
+    healthy = unit * (r1 + rn) / 4
+    seen = np.abs(healthy - ln) >= DETECT_SIGMAS * sigma_ohm
+    if not np.any(seen):
+        return None
+    length_m = r1 / (resistance_mohm_per_m(2.5) / 1000.0)
+    return float(fractions[seen].max() * length_m)
+
+
+def detection_limit(prep: Prepared, contact_sd: float, live_csa_mm2: float) -> Finding | None:
+    """The smallest fault per class these readings could reveal, from their scatter."""
+    r1, rn, r2 = prep.e2e_ohm
+    if not np.all(np.isfinite(prep.e2e_ohm)) or r1 <= 0:
+        return None
+    sigma = float(np.hypot(meter.sigma_ohm((r1 + rn) / 4), contact_sd))
+    sigma_e2e = float(np.hypot(meter.sigma_ohm(r1), contact_sd))
+    joint = max(3.0 * np.sqrt(2.0) * sigma_e2e, 0.03)
+    k = prep.ratio_e
+    spur_line_ohm = DETECT_SIGMAS * sigma / np.sqrt(4.0 + (1.0 + k) ** 2)
+    spur_m = spur_line_ohm / (resistance_mohm_per_m(live_csa_mm2) / 1000.0)
+    msg, nxt = setup_messages.detection_limit(sigma, joint, spur_m,
+                                              _bridge_across_one_m(prep, sigma))
+    return Finding("detection_limit", "info", msg, nxt)
+
