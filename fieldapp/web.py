@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import uuid
+
 from flask import abort, request
 from flask_login import current_user
 from werkzeug.routing import IntegerConverter
@@ -67,3 +69,8 @@ def get_or_404(model, ident):
 def options(pairs) -> list[SelectChoice]:
     """(value, label) pairs as WTForms select choices."""
     return [SelectChoice(value, label) for value, label in pairs]
+
+
+def new_client_id() -> str:
+    """A fresh idempotency key for one write from a page (forms put it in a hidden field)."""
+    return str(uuid.uuid4())

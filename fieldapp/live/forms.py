@@ -18,8 +18,7 @@ from fieldapp.live.values import (
     TAKEN_AT_LABELS,
     parse_circuit_fields,
 )
-from fieldapp.ringtest.forms import new_client_id
-from fieldapp.web import options
+from fieldapp.web import new_client_id, options
 
 DECIMAL = {"inputmode": "decimal", "autocomplete": "off", "spellcheck": "false"}
 #: Insulation test voltages of BS 7671:2018 Table 64 (SELV/PELV 250 V; up to 500 V circuits

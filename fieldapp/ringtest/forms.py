@@ -2,28 +2,19 @@
 
 from __future__ import annotations
 
-import uuid
-
 from flask_wtf import FlaskForm
 from wtforms import BooleanField, HiddenField, SelectField, StringField, SubmitField
 from wtforms.validators import DataRequired, Length
 
 from fieldapp.labels import KIND_LABELS
-from fieldapp.web import options
+from fieldapp.web import new_client_id, options
 from ringmath.record import FCU_FUSE_RATINGS_A, OUTLET_KINDS
 
 SPUR_CSA = (("", "same as the ring"), ("1", "1.0 mm²"), ("1.5", "1.5 mm²"), ("2.5", "2.5 mm²"),
             ("4", "4 mm²"))
 
-
-def new_client_id() -> str:
-    """A fresh idempotency key for one write from this page."""
-    return str(uuid.uuid4())
-
-
 def _float_or_none(value):
     return None if value in ("", None) else float(value)
-
 
 class SafetyForm(FlaskForm):
     isolated = BooleanField("The circuit is isolated (its device is off and the circuit "
@@ -32,7 +23,6 @@ class SafetyForm(FlaskForm):
     proved_dead = BooleanField("I proved it dead with an approved voltage indicator, checked on "
                                "a known source before and after")
     submit = SubmitField("Confirm and start testing")
-
 
 class ReadingForm(FlaskForm):
     """One reading. The OL button sends "OL" instead of the typed value."""
@@ -54,7 +44,6 @@ class ReadingForm(FlaskForm):
             return "OL"
         text = (self.value.data or "").strip()
         return text or None
-
 
 class OutletForm(FlaskForm):
     label = StringField("Where is it?", validators=[DataRequired(), Length(max=120)],
@@ -85,7 +74,6 @@ class OutletForm(FlaskForm):
             "spur_csa_mm2": _float_or_none(self.spur_csa_mm2.data) if spur else None,
             "spur_cpc_csa_mm2": _float_or_none(self.spur_cpc_csa_mm2.data) if spur else None,
         }
-
 
 class ActionForm(FlaskForm):
     """A bare button (move to the next step, delete an outlet): CSRF only."""
