@@ -87,8 +87,23 @@
   /* Cards waiting for the server's answer to an item, by item id. */
   var pending = {};
 
+  /* Kept on the phone, not on the server yet: the card says so (with the band it last had). */
+  function showWaiting(entry) {
+    if (entry.shown) return;
+    entry.shown = true;
+    RT.overlay.setValue(entry.card, entry.value, true);
+    note(entry.card, "Saved on this phone: " + entry.words + ". It will be sent when back " +
+      "online." + bandNote(entry.card, entry.value));
+  }
+
   function onOutbox(event) {
     var d = event.detail || {};
+    if (d.done) {  // no signal, signed out or another sender: what is pending waits here
+      if (d.report && d.report.outcome !== "done" && d.report.outcome !== "busy") {
+        Object.keys(pending).forEach(function (id) { showWaiting(pending[id]); });
+      }
+      return;
+    }
     if (!d.item || !pending[d.item.id]) return;
     var entry = pending[d.item.id];
     delete pending[d.item.id];
@@ -108,7 +123,7 @@
   }
 
   function send(form, ol) {
-    var card = form.closest("article.reading");
+    var card = form.closest(".reading");
     var input = form.querySelector('input[name="value"]');
     var value = ol ? "OL" : input.value.trim();
     if (!value) {
@@ -128,19 +143,18 @@
     var where = key ? " at outlet " + key : clientKey ? " at the new outlet" : "";
     var words = (util.NAMES[field] || field) + where + " = " + value;
     var entry = RT.forms.item("reading", body, words, RT.forms.target("reading", field,
-      key || clientKey), clientKey);
+      key || clientKey, form), clientKey, form);
     RT.forms.queue(entry).then(function () {
       var main = card.querySelector("form.reading-form:not(.slip-form)") || form;
-      pending[entry.id] = { card: card, form: main, focus: true };
+      var waitingEntry = { card: card, form: main, focus: true, value: value, words: words };
+      pending[entry.id] = waitingEntry;
       // the next reading from this card is a new write
       card.querySelectorAll('input[name="client_id"]').forEach(function (i) { i.value = util.newClientId(); });
       var slipBox = card.querySelector("[data-slip-box]");
       if (slipBox && form.classList.contains("slip-form")) slipBox.innerHTML = "";
       else input.value = "";
-      RT.overlay.setValue(card, value, true);
-      if (!navigator.onLine) {
-        note(card, "Saved on this phone: " + words + ". It will be sent when back online." +
-          bandNote(card, value));
+      if (!navigator.onLine) {  // online, the card changes when the server has it
+        showWaiting(waitingEntry);
         var next = card.nextElementSibling;
         while (next && !next.classList.contains("pending")) next = next.nextElementSibling;
         if (next) focusNext(next.id);

@@ -96,7 +96,11 @@
     document.addEventListener("submit", onLogout, true);
     root.addEventListener("ringtest:outbox", function (event) {
       if (event.detail && event.detail.done) {
-        RT.status.report(event.detail.report).then(function (items) { RT.overlay.apply(items); });
+        var report = event.detail.report || {};
+        RT.status.report(report).then(function (items) {
+          // online, a reading shows on its card once the server has it (app.js)
+          RT.overlay.apply(items, { waiting: report.outcome !== "done" && report.outcome !== "busy" });
+        });
       }
     });
     root.addEventListener("online", send);

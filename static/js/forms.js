@@ -10,8 +10,16 @@
   var RT = root.RT = root.RT || {};
   var util = RT.util;
 
-  function item(kind, body, words, target, needs) {
+  /* The circuit a form belongs to: the step page's, else the one its endpoint names. */
+  function circuitOf(form) {
     var p = RT.overlay.page();
+    if (p) return { circuitId: p.circuitId, jobId: p.jobId };
+    var m = /\/circuits\/(\d+)\//.exec((form && form.getAttribute("data-api")) || location.pathname);
+    return { circuitId: m ? Number(m[1]) : null, jobId: null };
+  }
+
+  function item(kind, body, words, target, needs, form) {
+    var p = circuitOf(form);
     var me = util.pageUser();
     var id = body.client_id || util.newClientId();
     body.client_id = id;
@@ -23,8 +31,8 @@
 
   /* What an item changes, so that a new entry for it replaces a refused one: the same
    * circuit, the same reading (or label) of the same outlet. */
-  function target(kind, field, outlet) {
-    return [kind, RT.overlay.page().circuitId, field, outlet || ""].join(":");
+  function target(kind, field, outlet, form) {
+    return [kind, circuitOf(form).circuitId, field, outlet || ""].join(":");
   }
 
   function sync() {
@@ -38,9 +46,13 @@
 
   function queue(entry) {
     return RT.outbox.add(entry).then(function (kept) {
-      sync();
       RT.status.refresh();
-      if (navigator.onLine) RT.replay.run();
+      if (navigator.onLine) {
+        // this page sends it now; the worker's Background Sync only when that fails
+        RT.replay.run().then(function (report) { if (report.outcome === "later") sync(); });
+      } else {
+        sync();
+      }
       return kept;
     });
   }

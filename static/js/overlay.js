@@ -101,8 +101,14 @@
   /* The outlet's card now has its server key: id, title and form follow. */
   function adoptKey(card, key, label) {
     var field = card.getAttribute("data-field");
+    var old = card.id;
     card.setAttribute("data-outlet", key);
     card.id = "r-" + field + "-" + key;
+    card.querySelectorAll("[id], label[for]").forEach(function (e) {  // v-, s-, o-, rn- ids
+      if (e.id && e.id.indexOf(old) >= 0) e.id = e.id.replace(old, card.id);
+      var f = e.getAttribute("for");
+      if (f && f.indexOf(old) >= 0) e.setAttribute("for", f.replace(old, card.id));
+    });
     var h = card.querySelector("h3");
     if (h) h.textContent = key + " · " + label;
     var input = card.querySelector('input[name="outlet"]');
@@ -173,7 +179,9 @@
       kind: b.kind, spurFrom: b.spur_from_key };
   }
 
-  function apply(items) {
+  /* options.waiting === false: leave out readings still waiting (online, being sent now). */
+  function apply(items, options) {
+    var showWaiting = !options || options.waiting !== false;
     var p = page();
     if (!p) return;
     var me = util.pageUser();
@@ -198,7 +206,8 @@
           var c = findCard(f, item.body.outlet_key || null, item.needs);
           if (c) setLabel(c, item.body.label);
         });
-      } else if (item.kind === "reading" && fields.indexOf(item.body.step) >= 0) {
+      } else if (item.kind === "reading" && fields.indexOf(item.body.step) >= 0 &&
+                 (showWaiting || !waiting)) {
         var rc = findCard(item.body.step, item.body.outlet || null, item.needs);
         if (rc) setValue(rc, item.body.value, waiting);
       }

@@ -367,12 +367,13 @@ def test_a_reading_whose_post_fails_on_the_network_waits(apprentice, live_app):
     page = apprentice
     _, circuit_id = seed_circuit(live_app)
     page.goto(f"/circuits/{circuit_id}/test/ln")
-    page.route("**/api/circuits/**", lambda route: route.abort("internetdisconnected"))
+    page.context.route("**/api/circuits/**", lambda route: route.abort("internetdisconnected"))
     enter(page, "r-ln-b", "0.25")
     expect(status(page)).to_contain_text("will send when back online")
+    expect(card(page, "r-ln-b").locator(".queued")).to_be_visible()
     assert waiting(page) == 1
 
-    page.unroute("**/api/circuits/**")
+    page.context.unroute("**/api/circuits/**")
     page.evaluate("window.dispatchEvent(new Event('online'))")
     expect(status(page)).to_contain_text("Sent 1 reading")
     assert float(outlet_reading(live_app, circuit_id, "b")) == pytest.approx(0.25)
