@@ -435,3 +435,28 @@ def test_a_new_worker_deletes_every_older_cache(page):
                           ".then(keys => keys.map(k => new URL(k.url).pathname))")
     assert {"/static/offline.html", "/static/app.css", "/static/js/outbox.js",
             "/static/js/boot.js"} <= set(shell)
+
+
+def test_a_slipped_decimal_point_sent_later_is_asked_not_refused(apprentice, live_app, context):
+    page = apprentice
+    _, circuit_id = seed_circuit(live_app)
+    open_step(page, circuit_id)
+    context.set_offline(True)
+    try:
+        enter(page, "r-ln-a", "2.6")  # expected about 0.26 Ω: (0.52 + 0.52) / 4
+        expect(card(page, "r-ln-a").locator(".queued")).to_be_visible()
+    finally:
+        context.set_offline(False)
+    question = card(page, "r-ln-a").locator("[data-slip]")
+    expect(question.get_by_role("button")).to_have_text(["0.26 Ω", "keep 2.6 Ω"])
+    expect(page.locator("#not-accepted")).to_have_count(0)
+    assert [i["state"] for i in items(page)] == ["question"]
+    assert outlet_reading(live_app, circuit_id, "a") is None
+    page.reload()  # the question stays on the phone, answered from the list
+    listed = page.locator("#outbox-questions")
+    expect(listed).to_contain_text("L–N at outlet a = 2.6")
+    listed.get_by_role("button", name="0.26 Ω").tap()
+    expect(listed).to_have_count(0)
+    wait_sent(page, 1)
+    assert outlet_reading(live_app, circuit_id, "a") == "0.26"
+    assert [i["state"] for i in items(page)] == ["sent"]
