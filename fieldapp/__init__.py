@@ -13,7 +13,7 @@ from pathlib import Path
 from flask import Flask, redirect, request, send_from_directory, url_for
 from flask_compress import Compress
 
-from fieldapp import applog, errors, security
+from fieldapp import applog, background, errors, security
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
 from fieldapp.models import utcnow
@@ -49,6 +49,7 @@ def create_app(config: dict | None = None) -> Flask:
     db.init_app(app)
     with app.app_context():
         security.tune_sqlite(db.engine)
+    background.init_app(app)
     csrf.init_app(app)
     login_manager.init_app(app)
     login_manager.login_view = "auth.login"

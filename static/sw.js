@@ -17,7 +17,7 @@
 
 importScripts("/static/js/util.js", "/static/js/outbox.js", "/static/js/replay.js");
 
-const VERSION = "ringtest-v8";
+const VERSION = "ringtest-v9";
 const SHELL_CACHE = VERSION + "-shell";
 const PAGE_CACHE = VERSION + "-pages";
 const OFFLINE_PAGE = "/static/offline.html";
@@ -31,6 +31,7 @@ const OPTIONAL = [
   "/static/js/overlay.js",
   "/static/js/forms.js",
   "/static/js/app.js",
+  "/static/js/updating.js",
   "/static/js/boot.js",
   "/static/js/sheet.js",
   "/static/manifest.webmanifest",
