@@ -33,8 +33,7 @@ const OPTIONAL = [
   "/static/js/app.js",
   "/static/js/updating.js",
   "/static/js/boot.js",
-  "/static/js/sheet.js",
-  "/static/manifest.webmanifest",
+  "/static/manifest.webmanifest",  // sheet.js: kept on first use (job pages only)
   "/static/icons/icon.svg",
 ];
 

@@ -56,14 +56,15 @@
     });
   }
 
-  /* On a step page, the circuit's other step pages are kept too (once, if not kept yet), so
-   * that "Next" works in a basement; an older copy is brought up to date by the outbox. */
+  /* On a step page, the next step's page is kept too (once, if not kept yet), so that "Next"
+   * works in a basement (the previous one was kept on the way here); an older copy is brought
+   * up to date by the outbox. */
   function keepSteps() {
     var p = RT.overlay && RT.overlay.page();
-    if (!p || !p.writable || !navigator.onLine) return;
-    var urls = ["e2e", "ln", "le"].filter(function (s) { return s !== p.step; })
-      .map(function (s) { return location.origin + "/circuits/" + p.circuitId + "/test/" + s; });
-    tellWorker({ type: "keep-missing", urls: urls });
+    var next = p && { e2e: "ln", ln: "le" }[p.step];
+    if (!next || !p.writable || !navigator.onLine) return;
+    tellWorker({ type: "keep-missing",
+      urls: [location.origin + "/circuits/" + p.circuitId + "/test/" + next] });
   }
 
   function redraw() {

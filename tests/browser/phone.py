@@ -8,6 +8,8 @@ import itertools
 from seeds import ring_circuit
 
 _numbers = itertools.count(1)
+#: The browser tests' accounts (loopback only, one test run).
+PASSWORD = "loopback-only-7"
 
 
 def seed_circuit(live_app, *, safety=True, outlets=("Kitchen by door", "Lounge window"),

@@ -10,7 +10,15 @@ from __future__ import annotations
 import re
 
 import pytest
-from phone import card, enter, outlet_reading, outlets_of, seed_circuit, writes_with
+from phone import (
+    PASSWORD,
+    card,
+    enter,
+    outlet_reading,
+    outlets_of,
+    seed_circuit,
+    writes_with,
+)
 from playwright.sync_api import expect
 
 pytestmark = pytest.mark.browser
@@ -395,8 +403,6 @@ def test_logging_out_forgets_the_pages_kept_for_offline(apprentice, live_app):
 
 def sign_in_without_a_page(page, username: str = "apprentice") -> None:
     """A session cookie in the context, without opening any page (no worker yet)."""
-    from conftest import PASSWORD
-
     form = page.request.get("/login").text()
     token = re.search(r'name="csrf_token" type="hidden" value="([^"]+)"', form) or re.search(
         r'name="csrf-token" content="([^"]+)"', form)
