@@ -23,7 +23,7 @@ ROOT = Path(__file__).resolve().parent.parent
 #: Blueprints built in this package; optional ones are registered when their module exists.
 BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api",
               "fieldapp.review", "fieldapp.sheets", "fieldapp.transfer", "fieldapp.users",
-              "fieldapp.live")
+              "fieldapp.live.views")
 
 
 def create_app(config: dict | None = None) -> Flask:

@@ -10,7 +10,10 @@ expected value and band from step 1). The full diagnosis of the circuit's new re
   process: the result goes to the database (``fieldapp.diagnoses``), and a circuit whose
   pending mark is lost (a worker restarted) is diagnosed by the next page or poll that asks.
 
-Set ``FIELDAPP_DIAGNOSIS=inline|background`` (config ``DIAGNOSIS_MODE``).
+* ``queue``: a team on PostgreSQL runs the diagnoses in separate worker processes through a
+  shared job queue (``fieldapp/taskqueue.py``, procrastinate).
+
+Set ``FIELDAPP_DIAGNOSIS=inline|background|queue`` (config ``DIAGNOSIS_MODE``).
 """
 
 from __future__ import annotations
@@ -24,7 +27,7 @@ from flask import Flask
 
 log = logging.getLogger(__name__)
 
-MODES = ("inline", "background")
+MODES = ("inline", "background", "queue")
 #: Seconds a circuit waits after its latest save before it is diagnosed: quick saves in a row
 #: (a tester reading socket after socket) then cost one diagnosis, not one each.
 COALESCE_S = 0.15
@@ -127,9 +130,16 @@ def init_app(app: Flask) -> None:
     mode = app.config.get("DIAGNOSIS_MODE", "inline")
     if mode not in MODES:
         raise ValueError(f"DIAGNOSIS_MODE: expected one of {', '.join(MODES)}, got {mode!r}")
+    if mode == "queue":
+        from fieldapp.taskqueue import QueueSubmitter, conninfo
+
+        conninfo(app.config["SQLALCHEMY_DATABASE_URI"])  # refuse a non-PostgreSQL database now
+        app.extensions["ringtest_background"] = QueueSubmitter(app)
+        return
     app.extensions["ringtest_background"] = Background(app) if mode == "background" else None
 
 
-def queue(app: Flask) -> Background | None:
-    """The app's background queue, or None when diagnoses run inline."""
+def queue(app: Flask):
+    """The app's background queue (a Background or a taskqueue.QueueSubmitter), or None."""
     return app.extensions.get("ringtest_background")
+

@@ -22,13 +22,16 @@ from ringmath.setup_errors import Setup
 #: readings call for a check of the terminations (common practice: r1 and rn within 0.05 Ω;
 #: 0.06-0.10 Ω is noted and the terminations checked).
 JOINT_FAULT_OHM = 0.10
-#: Set-up offsets beyond this (ohms, either sign) call for a re-test: up to it a sound ring
-#: is still judged sound (common practice tolerates readings within 0.05 Ω); from
-#: OFFSET_NOTE_OHM they are noted. The estimate carries about 0.01 Ω of error itself.
-OFFSET_RETEST_OHM = 0.065
+#: A set-up offset calls for a re-test when it is at least this probable that it is beyond
+#: setup_errors.OFFSET_TOLERATED_OHM (0.05 Ω, the readings' common-practice tolerance); offsets
+#: from OFFSET_NOTE_OHM are otherwise noted.
+OFFSET_RETEST_P = 0.8
 OFFSET_NOTE_OHM = 0.025
 #: Gains between steps worth a note (fraction).
 GAIN_NOTE = 0.03
+#: An outlet fault read from the front is stated as a fault only at this confidence or more;
+#: below it worn socket contacts remain a real alternative and the finding is a warning.
+FRONT_SURE = 0.8
 #: Standard deviations a fault must move a reading by to be seen among many readings.
 DETECT_SIGMAS = 4.0
 _BRIDGE = Layout(3, (False, False, False), extras=((1, 2),))
@@ -69,7 +72,7 @@ def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | 
     d = setup.offset_ohm
     if abs(d) < OFFSET_NOTE_OHM:
         return None
-    severity = "warning" if abs(d) >= OFFSET_RETEST_OHM else "info"
+    severity = "warning" if setup.p_beyond >= OFFSET_RETEST_P else "info"
     if setup.kind == "leads":
         msg, nxt = setup_messages.lead_offset(d, ratios)
         return Finding("setup_lead_offset", severity, msg, nxt, confidence=confidence)
@@ -94,6 +97,10 @@ def local_findings(prep: Prepared, faults: list[tuple[LocalFault, float]], names
         name = names.get(lf.outlet, lf.outlet)
         if lf.code == "setup_socket_contacts":
             continue
+        if lf.outlet in front and conf < FRONT_SURE and lf.code in (
+                "unrecorded_spur", "high_resistance_joint"):
+            out.append(_front_doubt(prep, lf, conf, name))
+            continue
         if lf.code == "unrecorded_spur":
             i = prep.ring_ids.index(lf.outlet)
             msg, nxt = messages.unrecorded_spur(name, 2.0 * (lf.r_ohm or 0.0),
@@ -114,6 +121,23 @@ def local_findings(prep: Prepared, faults: list[tuple[LocalFault, float]], names
                 out.append(Finding(code, "fault", msg, nxt, (lf.outlet,), conductor=conductor,
                                    confidence=conf))
     return out
+
+
+def _front_doubt(prep: Prepared, lf: LocalFault, conf: float, name: str) -> Finding:
+    """An outlet fault read from the socket front that worn contacts explain nearly as well:
+    a warning whose first check is the re-measure at the terminals."""
+    if lf.code == "unrecorded_spur":
+        i = prep.ring_ids.index(lf.outlet)
+        msg, nxt = messages.unrecorded_spur(name, 2.0 * (lf.r_ohm or 0.0),
+                                            bool(np.isfinite(prep.ln_ohm[i])),
+                                            bool(np.isfinite(prep.le_ohm[i])))
+    else:
+        msg, nxt = messages.joint(lf.conductor, lf.r_ohm or 0.0, [name], True, at_outlet=True)
+    msg += (" It was read at the socket front, where worn socket contacts give the same "
+            "readings.")
+    nxt = f"Re-measure {name} at the terminals first. If it still reads high: " + nxt
+    return Finding(lf.code, "warning", msg, nxt, (lf.outlet,), conductor=lf.conductor,
+                   confidence=conf)
 
 
 def _bridge_across_one_m(prep: Prepared, sigma_ohm: float) -> float | None:

@@ -34,7 +34,7 @@ from ringmath.network import CONDUCTOR_INDEX, Layout, step_resistance
 from ringmath.nodal import SHORT_OHM
 
 G_FINE = 64
-G_COARSE = 20
+G_COARSE = 16
 #: Positions for the bridge's first uniform grid (about 200 candidates), before refinement.
 G_GRID = 14
 #: Prior probabilities of each explanation (our working figures: most rings are sound).
@@ -158,7 +158,7 @@ def _bridge_grid() -> np.ndarray:
 
 
 def _refine(evaluate, theta: np.ndarray, ll: np.ndarray, steps: np.ndarray, lower, upper,
-            rounds: int = 3, keep: int = 3) -> tuple[np.ndarray, np.ndarray]:
+            rounds: int = 3, keep: int = 2) -> tuple[np.ndarray, np.ndarray]:
     """Local grid refinement: around the best ``keep`` rows, try +-step in each coordinate
     (``steps`` per coordinate; coordinates with a negative step are scaled by factors instead),
     halving the steps each round. Returns all evaluated rows and their logliks."""

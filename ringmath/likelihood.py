@@ -26,7 +26,7 @@ import numpy as np
 
 from ringmath import meter
 from ringmath.checks.expected import used_reading
-from ringmath.conductors import resistance_mohm_per_m
+from ringmath.conductors import resistance_mohm_per_m, spur_cable
 from ringmath.record import RingTest
 
 #: Probability that an "OL" is shown where the circuit is continuous, and vice versa.
@@ -46,14 +46,11 @@ LOG_CONTACT_PRIOR = np.log(CONTACT_PRIOR)
 CPC_FREE_BELOW = 0.6
 #: Prior probability, per outlet, of a high contact resistance at the socket (worn contacts,
 #: plug-in lead), by where the reading was taken (our working figures).
-CONTACT_FAULT_PRIOR = {"front": 0.06, None: 0.015, "terminals": 0.0005}
+CONTACT_FAULT_PRIOR = {"front": 0.12, None: 0.02, "terminals": 0.0005}
 #: Relative spread of r2/r1 about the tabulated ratio on a sound ring of one cable type
-#: (copper and sizes alike in every core; our working figure, common practice expects
-#: r2 ≈ 1.67 x r1 for 2.5/1.5 closely).
+#: (copper and sizes alike in every core; our working figure; the ratio itself is the
+#: conductor table's, 1.633 for 2.5/1.5 mm²).
 CPC_RATIO_TOL = 0.025
-#: The cpc that usually comes with a flat twin-and-earth cable of a given live csa, mm²
-#: (common practice: 1.0/1.0, 1.5/1.0, 2.5/1.5, 4/1.5, 6/2.5, 10/4).
-TWIN_AND_EARTH_CPC_MM2 = {1.0: 1.0, 1.5: 1.0, 2.5: 1.5, 4.0: 1.5, 6.0: 2.5, 10.0: 4.0}
 
 
 def t_grid(n: int) -> np.ndarray:
@@ -72,7 +69,8 @@ class Prepared:
     rn/r1 and r2/r1 from the conductor table (ratio_e as measured when ``cpc_free``).
     contact_prior: per ring outlet, the prior of a high socket contact (CONTACT_FAULT_PRIOR by
     where it was read). cpc_free: the cpc is metallic containment, has parallel paths, or r2 is
-    far below the cable's value: r2/r1 is then not a check of the cable.
+    far below the cable's value: r2/r1 is then not a check of the cable, and the finite step 3
+    readings are left out of the fit (they follow the metalwork, not the ring).
     """
 
     e2e_ohm: np.ndarray
@@ -112,15 +110,9 @@ def prepare(test: RingTest) -> Prepared:
     kids = [o for o in test.outlets if o.spur_from in index]
     kn, ke, fused = [], [], []
     for o in kids:
-        live = o.spur_csa_mm2 or c.live_csa_mm2
-        if o.spur_cpc_csa_mm2 is not None:
-            cpc = o.spur_cpc_csa_mm2
-        elif o.spur_csa_mm2 is None:
-            cpc = c.cpc_csa_mm2
-        else:
-            cpc = TWIN_AND_EARTH_CPC_MM2.get(live, live)
+        cable = spur_cable(o.spur_csa_mm2, o.spur_cpc_csa_mm2, ring_live_csa_mm2=c.live_csa_mm2)
         kn.append(1.0)
-        ke.append(resistance_mohm_per_m(cpc) / resistance_mohm_per_m(live))
+        ke.append(cable.cpc_ohm_per_m / cable.live_ohm_per_m)
         fused.append(by_id[o.spur_from].kind == "fcu")
     e = test.end_to_end
     ratio_e = rho_e / rho_l
@@ -131,15 +123,22 @@ def prepare(test: RingTest) -> Prepared:
         cpc_free = True
     if cpc_free and np.isfinite(r1) and np.isfinite(r2) and r1 > 0 and r2 > 0:
         ratio_e = r2 / r1
+    le_ring = np.array([_val(used_reading(o, "le")) for o in ring])
+    le_kids = np.array([_val(used_reading(o, "le")) for o in kids])
+    if cpc_free:
+        # through metalwork the step 3 readings follow the metal's route, not the ring cable's:
+        # they cannot test the ring, so only their OL readings are kept
+        le_ring = np.where(np.isinf(le_ring), le_ring, np.nan)
+        le_kids = np.where(np.isinf(le_kids), le_kids, np.nan)
     return Prepared(
         e2e_ohm=np.array([_val(e.r1_ohm), _val(e.rn_ohm), _val(e.r2_ohm)]),
         ring_ids=tuple(o.id for o in ring),
         ln_ohm=np.array([_val(used_reading(o, "ln")) for o in ring]),
-        le_ohm=np.array([_val(used_reading(o, "le")) for o in ring]),
+        le_ohm=le_ring,
         child_ids=tuple(o.id for o in kids),
         child_parent=np.array([index[o.spur_from] for o in kids], dtype=np.intp),
         child_ln_ohm=np.array([_val(used_reading(o, "ln")) for o in kids]),
-        child_le_ohm=np.array([_val(used_reading(o, "le")) for o in kids]),
+        child_le_ohm=le_kids,
         child_kn=np.array(kn),
         child_ke=np.array(ke),
         child_fused=np.array(fused, dtype=bool),

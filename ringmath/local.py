@@ -24,11 +24,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ringmath import meter
 from ringmath.fitting import JOINT_MIN_OHM, Fit
 from ringmath.likelihood import (
     CONTACT_SD_OHM,
     LOG_CONTACT_PRIOR,
+    LOG_OUTLIER,
     P_OL_FALSE,
+    P_OUTLIER,
     Prepared,
     log_mean_exp,
     outlet_loglik,
@@ -70,6 +73,8 @@ class LocalFault:
 
     r_ohm: the spur's line resistance or the joint's resistance, ohms (None for OL patterns).
     tie: the other explanation that fits exactly as well, as (code, conductor, swap), or None.
+    share: its probability among every alternative at the outlet and "as recorded" (None:
+    against "as recorded" only, from the gain).
     """
 
     outlet: str
@@ -79,11 +84,12 @@ class LocalFault:
     r_ohm: float | None = None
     swap: str | None = None
     tie: tuple | None = None
+    share: float | None = None
 
     def confidence(self) -> float:
-        """Probability that the outlet has this fault rather than being as recorded (a tie
-        shares it)."""
-        p = 1.0 / (1.0 + np.exp(-self.gain))
+        """Probability that the outlet has this fault rather than being as recorded or having
+        another of the alternatives (``share``; a tie halves it)."""
+        p = self.share if self.share is not None else 1.0 / (1.0 + np.exp(-self.gain))
         return float(p / 2 if self.tie else p)
 
 
@@ -107,19 +113,74 @@ def _ol_faults(outlet: str, ln: float, le: float) -> LocalFault | None:
 
 
 def _options(prep: Prepared) -> list[tuple]:
-    """(code, conductor, step 2 factor, step 3 factor, range, log prior per ring outlet)."""
+    """(code, conductor, step 2 factor, step 3 factor, range, log prior per ring outlet).
+
+    A factor of None is a free excess on that step: the socket's line pin adds to both steps,
+    its neutral pin to step 2 only and its earth pin to step 3 only, so a worn socket raises
+    the two readings by two unrelated amounts (a two-dimensional excess, 40 % of the contact
+    prior), or alike (the line pin, 30 %), or one step only (15 % each)."""
     n = len(prep.ring_ids)
     contact = (prep.contact_prior if prep.contact_prior is not None
                else np.full(n, CONTACT_DEFAULT_PRIOR))
-    log_contact = np.log(contact / 3.0)  # one of the three pins
     opts = [("unrecorded_spur", None, 2.0, 1.0 + prep.ratio_e, SPUR_RANGE_OHM,
              np.full(n, np.log(LOCAL_PRIORS["unrecorded_spur"])))]
     for conductor, a_ln, a_le in (("line", 1.0, 1.0), ("neutral", 1.0, 0.0), ("cpc", 0.0, 1.0)):
         opts.append(("high_resistance_joint", conductor, a_ln, a_le, JOINT_RANGE_OHM,
                      np.full(n, np.log(LOCAL_PRIORS["high_resistance_joint"]))))
+    for conductor, a_ln, a_le, share in ((None, None, None, 0.4), ("line", 1.0, 1.0, 0.3),
+                                         ("neutral", 1.0, 0.0, 0.15), ("cpc", 0.0, 1.0, 0.15)):
         opts.append(("setup_socket_contacts", conductor, a_ln, a_le, CONTACT_RANGE_OHM,
-                     log_contact))
+                     np.log(contact * share)))
     return opts
+
+
+def _norm_cdf(z: np.ndarray) -> np.ndarray:
+    """Standard normal CDF via erf, Abramowitz & Stegun (1964) formula 7.1.26 (|error| of erf
+    below 1.5e-7)."""
+    x = np.abs(z) / np.sqrt(2.0)
+    t = 1.0 / (1.0 + 0.3275911 * x)
+    poly = t * (0.254829592 + t * (-0.284496736 + t * (1.421413741 + t * (-1.453152027
+                                                                          + t * 1.061405429))))
+    erf = 1.0 - poly * np.exp(-x * x)
+    return 0.5 * (1.0 + np.sign(z) * erf)
+
+
+def free_excess_loglik(x: np.ndarray, mu: np.ndarray, extra_sd, r_lo: float,
+                       r_hi: float) -> np.ndarray:
+    """Log-likelihood of reading ``x`` (ohms) when it is the model value ``mu`` plus an
+    unknown excess uniform on (r_lo, r_hi) ohms, the excess integrated exactly:
+    [Φ((x − mu − r_lo)/σ) − Φ((x − mu − r_hi)/σ)] / (r_hi − r_lo), σ the reading's sd at x,
+    mixed with the outlier part as ``reading_loglik`` is. A reading not taken gives 0."""
+    taken = np.isfinite(x)
+    xs = np.where(taken, x, 0.0)
+    sig = np.sqrt(meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * np.abs(xs)) ** 2
+                  + np.asarray(extra_sd, dtype=float) ** 2)
+    d = xs - mu
+    p = (_norm_cdf((d - r_lo) / sig) - _norm_cdf((d - r_hi) / sig)) / (r_hi - r_lo)
+    mixed = np.log((1 - P_OUTLIER) * np.maximum(p, 1e-300) + np.exp(LOG_OUTLIER))
+    return np.where(taken, mixed, 0.0)
+
+
+def _choose(prep: Prepared, idx: np.ndarray, opts: list[tuple], gains: np.ndarray,
+            r_ests: np.ndarray) -> list[LocalFault]:
+    """Per outlet, the most probable family of alternatives (a socket contact in any of its
+    patterns counts as one family, its evidence summed), kept when it beats "as recorded";
+    its share is its probability against every alternative and "as recorded"."""
+    family = [o[0] if o[0] == "setup_socket_contacts" else (o[0], o[1]) for o in opts]
+    keys = list(dict.fromkeys(family))
+    out = []
+    for j in range(idx.size):
+        g = gains[:, j]
+        fam = np.array([np.logaddexp.reduce(g[[f == k for f in family]]) for k in keys])
+        if not np.any(np.isfinite(fam)) or fam.max() <= 0:
+            continue
+        top = int(np.argmax(fam))
+        members = [i for i, f in enumerate(family) if f == keys[top]]
+        m = members[int(np.argmax(g[members]))]
+        share = float(np.exp(fam[top] - np.logaddexp.reduce(np.append(fam, 0.0))))
+        out.append(LocalFault(prep.ring_ids[idx[j]], opts[m][0], opts[m][1], float(fam[top]),
+                              float(r_ests[m, j]), share=share))
+    return out
 
 
 def local_faults(prep: Prepared, fit: Fit) -> list[LocalFault]:
@@ -157,14 +218,19 @@ def local_faults(prep: Prepared, fit: Fit) -> list[LocalFault]:
     hopeful = np.any(ceiling + top_prior[None, :] >= asis, axis=0)
     idx = np.flatnonzero(finite_pair & hopeful)
     if idx.size:
-        best_gain = np.full(idx.size, 0.0)
-        best: list[LocalFault | None] = [None] * idx.size
+        gains, r_ests = [], []
         x_ln, x_le = ln[idx][None, :, None, None], le[idx][None, :, None, None]
         sd4 = CONTACT_SD_OHM[:, None, None, None]
-        for code, conductor, a_ln, a_le, (r_lo, r_hi), log_prior in opts:
-            r = np.linspace(r_lo, r_hi, R_POINTS)  # uniform prior over the range
-            alt = (reading_loglik(x_ln, p_ln[None, None, :, None] + a_ln * r, sd4)
-                   + reading_loglik(x_le, p_le[None, None, :, None] + a_le * r, sd4))
+        for _code, _conductor, a_ln, a_le, (r_lo, r_hi), log_prior in opts:
+            if a_ln is None:  # two free excesses, each integrated exactly
+                alt = (free_excess_loglik(x_ln, p_ln[None, None, :, None], sd4, r_lo, r_hi)
+                       + free_excess_loglik(x_le, p_le[None, None, :, None], sd4, r_lo, r_hi))
+                e_ln = e_le = np.zeros(1)
+            else:  # one excess on a uniform grid over the range
+                r = np.linspace(r_lo, r_hi, R_POINTS)
+                e_ln, e_le = a_ln * r, a_le * r
+                alt = (reading_loglik(x_ln, p_ln[None, None, :, None] + e_ln, sd4)
+                       + reading_loglik(x_le, p_le[None, None, :, None] + e_le, sd4))
             joint_ll = rest[:, idx][..., None] + alt  # (S, k, G, R)
             evidence = log_mean_exp(joint_ll.reshape(*joint_ll.shape[:2], -1), axis=-1)
             new_total = total[:, None] - asis[:, idx] + evidence  # (S, k)
@@ -173,14 +239,17 @@ def local_faults(prep: Prepared, fit: Fit) -> list[LocalFault]:
             # an alternative that only moves a reading not taken explains nothing
             useless = (np.isnan(ln[idx]) if a_le == 0 else False) | (
                 np.isnan(le[idx]) if a_ln == 0 else False)
+            if a_ln is None:  # a free excess on both steps needs both readings
+                useless = np.isnan(ln[idx]) | np.isnan(le[idx])
             gain = np.where(useless, -np.inf, gain)
             w = np.exp(joint_ll - joint_ll.max(axis=(0, 2, 3), keepdims=True)).sum(axis=(0, 2))
-            r_est = (w * r).sum(axis=-1) / w.sum(axis=-1)
-            for j in np.flatnonzero(gain > best_gain):
-                best_gain[j] = gain[j]
-                best[j] = LocalFault(prep.ring_ids[idx[j]], code, conductor, float(gain[j]),
-                                     float(r_est[j]))
-        found.extend(b for b in best if b is not None)
+            if a_ln is None:  # the larger excess, read against the ring's median prediction
+                r_est = np.fmax(ln[idx] - np.median(p_ln), le[idx] - np.median(p_le))
+            else:
+                r_est = (w * r).sum(axis=-1) / w.sum(axis=-1)
+            gains.append(gain)
+            r_ests.append(r_est)
+        found.extend(_choose(prep, idx, opts, np.array(gains), np.array(r_ests)))
     for j, oid in enumerate(prep.child_ids):
         ol = _ol_faults(oid, prep.child_ln_ohm[j], prep.child_le_ohm[j])
         if ol is not None and ol.gain > 0:

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ringmath.fitting import Fit, fit_all
-from ringmath.likelihood import Prepared
+from ringmath.likelihood import Prepared, search_index
 from ringmath.local import LocalFault, local_faults
 from ringmath.setup_errors import P_NONE, Setup, correct, fit_setup
 
@@ -60,7 +60,7 @@ def rank(prep: Prepared) -> tuple[list[Combo], np.ndarray]:
         return [], np.zeros(0)
     combos = _combos(prep, fits, n, np.log(P_NONE), None)
     healthy = next((f for f in fits if f.code == "healthy"), None)
-    setup = fit_setup(prep)
+    setup = None if healthy is None else fit_setup(prep, search_index(healthy.contact_sd))
     if healthy is not None and setup is not None and setup.vs_none > SETUP_TRY_NATS:
         fixed = correct(prep, setup)
         fits2 = fit_all(fixed)

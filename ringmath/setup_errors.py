@@ -40,19 +40,22 @@ from ringmath.network import Layout, step_resistance
 
 #: Prior probability of each kind of set-up error (our working figures); the rest is "none".
 SETUP_PRIORS = {"leads": 0.08, "offset_r": 0.02, "offset_ln": 0.025, "offset_le": 0.025,
-                "gain": 0.04, "scale": 0.004}
+                "gain": 0.04, "scale": 0.01}
 P_NONE = 1.0 - sum(SETUP_PRIORS.values())
 #: Offsets searched, ohms: over-nulled by 0.06 to 0.15 Ω not nulled (0 is "none").
 OFFSET_GRID_OHM = np.array([d for d in np.round(np.arange(-0.06, 0.1501, 0.01), 3) if d != 0])
+#: An offset up to this either way (ohms) leaves the readings usable (common practice judges
+#: readings within 0.05 Ω); beyond it they must be re-taken.
+OFFSET_TOLERATED_OHM = 0.05
 #: Small gains between step 1 and steps 2-3 (warmer cable, meter gain), fractions.
 GAIN_GRID = np.array([-0.06, -0.04, -0.02, 0.02, 0.04, 0.06, 0.08])
-#: Gross factors between step 1 and steps 2-3 that no wiring makes on every reading.
-SCALE_GRID = np.array([0.33, 0.4, 0.5, 0.6, 0.7, 0.8, 1.25, 1.4, 1.6, 1.8, 2.0, 2.25, 2.5,
-                       3.0])
-#: Positions on which the sound ring is evaluated for the search, and the contact sd of the
-#: grid (likelihood.CONTACT_SD_OHM index) it is searched at.
+#: Gross factors between step 1 and steps 2-3 that no wiring makes on every reading: 0.33x to
+#: 3x, evenly in log steps of 1.5 % (fine enough that the nearest sits within a reading's
+#: noise), leaving out 0.8x-1.25x (the gain's range and beyond what temperature can do).
+_LOG_SCALE = np.arange(np.log(0.33), np.log(3.0) + 1e-9, 0.015)
+SCALE_GRID = np.exp(_LOG_SCALE[np.abs(_LOG_SCALE) >= np.log(1.25)])
+#: Positions on which the sound ring is evaluated for the search.
 G_SETUP = 24
-SEARCH_S_INDEX = 1
 _PLAIN = Layout(1, (False,))
 
 
@@ -60,13 +63,16 @@ _PLAIN = Layout(1, (False,))
 class Setup:
     """One set-up error: kind (see module doc), offset_ohm d, gain g (steps 2-3 read
     (1 + g) x what step 1 implies). log_cost: log prior of the kind + the Occam factor of its
-    parameter (<= 0). vs_none: its evidence under a sound ring minus "as read" (nats)."""
+    parameter (<= 0). vs_none: its evidence under a sound ring minus "as read" (nats).
+    p_beyond: posterior probability (over the kind's grid) that the offset is beyond
+    OFFSET_TOLERATED_OHM either way: the readings then have to be re-taken."""
 
     kind: str
     offset_ohm: float = 0.0
     gain: float = 0.0
     log_cost: float = 0.0
     vs_none: float = 0.0
+    p_beyond: float = 0.0
 
     def log_jacobian(self, n_step_readings: int) -> float:
         """log |d reading / d true| summed over the step 2-3 readings: a gain g stretches
@@ -95,9 +101,10 @@ def _variants(e2e: np.ndarray) -> list[tuple[str, float, float, float, float, fl
     return rows
 
 
-def fit_setup(prep: Prepared) -> Setup | None:
+def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
     """The most probable set-up error under a sound ring, or None when step 1 cannot be
-    modelled (a reading missing, OL or not positive)."""
+    modelled (a reading missing, OL or not positive). The search runs at contact sd
+    ``likelihood.CONTACT_SD_OHM[s_index]`` (the sound ring's own scatter estimate)."""
     e2e = prep.e2e_ohm
     if not np.all(np.isfinite(e2e)) or np.any(e2e <= 0):
         return None
@@ -116,7 +123,7 @@ def fit_setup(prep: Prepared) -> Setup | None:
     cons_d = np.stack([e2e_consistency(e2e - d, prep) for d in rings_d], axis=1)  # (S, D)
     # searched at one contact sd (the ranking of the candidates is what matters here; the
     # diagnosis scores the chosen one with the sd integrated)
-    ll = marginal_loglik(prep, pred_ln, pred_le, cons_d[:, which], SEARCH_S_INDEX)
+    ll = marginal_loglik(prep, pred_ln, pred_le, cons_d[:, which], s_index)
     kinds = np.array([r[0] for r in rows])
     none = float(ll[0]) + np.log(P_NONE)
     best: Setup | None = None
@@ -126,8 +133,12 @@ def fit_setup(prep: Prepared) -> Setup | None:
             continue
         evidence = float(log_mean_exp(ll[sel])) + np.log(prior)
         top = int(sel[np.argmax(ll[sel])])
+        params = np.array([rows[i][1] for i in sel])
+        w = np.exp(ll[sel] - ll[sel].max())
+        beyond = float(w[np.abs(params) > OFFSET_TOLERATED_OHM + 1e-9].sum() / w.sum())
         cand = Setup(kind, float(rows[top][1]) if kind not in ("gain", "scale") else 0.0,
-                     float(rows[top][5]), evidence - float(ll[top]), evidence - none)
+                     float(rows[top][5]), evidence - float(ll[top]), evidence - none,
+                     beyond if kind not in ("gain", "scale") else 0.0)
         if best is None or cand.vs_none > best.vs_none:
             best = cand
     return best

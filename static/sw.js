@@ -17,7 +17,7 @@
 
 importScripts("/static/js/util.js", "/static/js/outbox.js", "/static/js/replay.js");
 
-const VERSION = "ringtest-v9";
+const VERSION = "ringtest-v10";
 const SHELL_CACHE = VERSION + "-shell";
 const PAGE_CACHE = VERSION + "-pages";
 const OFFLINE_PAGE = "/static/offline.html";
@@ -30,6 +30,7 @@ const OPTIONAL = [
   "/static/js/status.js",
   "/static/js/overlay.js",
   "/static/js/forms.js",
+  "/static/js/slip.js",
   "/static/js/app.js",
   "/static/js/updating.js",
   "/static/js/boot.js",

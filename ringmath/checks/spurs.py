@@ -3,7 +3,7 @@ largest plausible rise."""
 
 from __future__ import annotations
 
-from ringmath.conductors import resistance_mohm_per_m
+from ringmath.conductors import resistance_mohm_per_m, spur_cable
 from ringmath.record import Outlet, RingTest
 
 #: ring is normally a few metres to one socket; 25 m is generous (a fused spur to an outbuilding
@@ -18,14 +18,19 @@ def _per_m_ohm(csa_mm2: float, path: str) -> float:
 
 
 def spur_cable_per_m_ohm(test: RingTest, outlet: Outlet) -> tuple[float, float]:
-    """(live, cpc) resistance per metre in ohms of the cable feeding spur ``outlet`` (its
-    spur_csa_mm2 / spur_cpc_csa_mm2, else the ring's sizes), from the BS EN 60228 table."""
+    """(live, cpc) resistance per metre in ohms of the cable feeding spur ``outlet``: the one
+    spur-cable model, ``conductors.spur_cable`` (its recorded sizes, else the ring's live size
+    and the twin-and-earth cpc of that live size). ValueError naming the outlet's field."""
     i = test.outlets.index(outlet)
-    c = test.circuit
-    live = outlet.spur_csa_mm2 if outlet.spur_csa_mm2 is not None else c.live_csa_mm2
-    cpc = outlet.spur_cpc_csa_mm2 if outlet.spur_cpc_csa_mm2 is not None else c.cpc_csa_mm2
-    return (_per_m_ohm(live, f"outlets[{i}].spur_csa_mm2"),
-            _per_m_ohm(cpc, f"outlets[{i}].spur_cpc_csa_mm2"))
+    try:
+        cable = spur_cable(outlet.spur_csa_mm2, outlet.spur_cpc_csa_mm2,
+                           ring_live_csa_mm2=test.circuit.live_csa_mm2)
+    except ValueError as exc:
+        text = str(exc)
+        if text.startswith("live_csa_mm2"):  # the spur's live size has no companion cpc
+            text = "spur_csa_mm2" + text[len("live_csa_mm2"):]
+        raise ValueError(f"outlets[{i}].{text}") from exc
+    return cable.live_ohm_per_m, cable.cpc_ohm_per_m
 
 
 def le_per_ln_factor(test: RingTest, outlet: Outlet) -> float:

@@ -58,18 +58,6 @@
     return " Within the expected " + band + ".";
   }
 
-  /* The decimal-point question: the server's two one-tap answers on the card. */
-  function showSlip(card, form, html) {
-    var box = card.querySelector("[data-slip-box]");
-    if (!box || !html) return false;
-    showError(form, "");
-    box.innerHTML = html;
-    box.querySelectorAll("form").forEach(enhance);
-    var first = box.querySelector("button");
-    if (first) first.focus();
-    return true;
-  }
-
   function applyReply(card, reply) {
     RT.overlay.setValue(card, reply.value, false);
     card.setAttribute("data-server-value", util.ohm(reply.value));
@@ -96,11 +84,33 @@
       "online." + bandNote(entry.card, entry.value));
   }
 
+  /* No server to ask: the card's band asks about a slipped decimal point, and the item
+   * waits in the outbox as a question (answered here or from the list), never sent as typed. */
+  function askLocally(id, entry) {
+    var slip = RT.slip.local(entry.form, { value: entry.value, keep: entry.keep });
+    if (!slip) return false;
+    delete pending[id];
+    RT.overlay.restore(entry.card);
+    note(entry.card, "");
+    RT.outbox.update(id, { state: "question", reply: { slip: slip },
+      reason: "Decimal point slipped? " + slip.typed + " Ω is out of the expected range here." })
+      .then(RT.status.refresh);
+    var get = function (name) {
+      var input = entry.form.querySelector('input[name="' + name + '"]');
+      return input ? input.value : "";
+    };
+    RT.slip.askHere(entry.form, { step: get("field"), outlet: get("outlet"), client_id: id,
+      device: util.deviceLabel(), value: entry.value }, slip);
+    return true;
+  }
+
   function onOutbox(event) {
     var d = event.detail || {};
     if (d.done) {  // no signal, signed out or another sender: what is pending waits here
       if (d.report && d.report.outcome !== "done" && d.report.outcome !== "busy") {
-        Object.keys(pending).forEach(function (id) { showWaiting(pending[id]); });
+        Object.keys(pending).forEach(function (id) {
+          if (!askLocally(id, pending[id])) showWaiting(pending[id]);
+        });
       }
       return;
     }
@@ -114,7 +124,7 @@
       RT.overlay.restore(entry.card);
       note(entry.card, "");
       var html = d.item.reply && d.item.reply.html && d.item.reply.html.slip;
-      if (!showSlip(entry.card, entry.form, html)) showError(entry.form, d.item.reason);
+      if (!RT.slip.show(entry.card, entry.form, html)) showError(entry.form, d.item.reason);
     } else if (d.state === "refused") {
       RT.overlay.restore(entry.card); // nothing was stored: the card shows what the server has
       note(entry.card, "");
@@ -146,7 +156,8 @@
       key || clientKey, form), clientKey, form);
     RT.forms.queue(entry).then(function () {
       var main = card.querySelector("form.reading-form:not(.slip-form)") || form;
-      var waitingEntry = { card: card, form: main, focus: true, value: value, words: words };
+      var waitingEntry = { card: card, form: main, focus: true, value: value, words: words,
+        keep: body.keep };
       pending[entry.id] = waitingEntry;
       // the next reading from this card is a new write
       card.querySelectorAll('input[name="client_id"]').forEach(function (i) { i.value = util.newClientId(); });
@@ -154,6 +165,7 @@
       if (slipBox && form.classList.contains("slip-form")) slipBox.innerHTML = "";
       else input.value = "";
       if (!navigator.onLine) {  // online, the card changes when the server has it
+        if (askLocally(entry.id, waitingEntry)) return;
         showWaiting(waitingEntry);
         var next = card.nextElementSibling;
         while (next && !next.classList.contains("pending")) next = next.nextElementSibling;
@@ -187,8 +199,10 @@
 
   function start() {
     document.querySelectorAll("form").forEach(enhance);
-    document.addEventListener("ringtest:card", function (event) {
-      event.detail.querySelectorAll("form").forEach(enhance);
+    ["ringtest:card", "ringtest:forms"].forEach(function (name) {
+      document.addEventListener(name, function (event) {
+        event.detail.querySelectorAll("form").forEach(enhance);
+      });
     });
     root.addEventListener("ringtest:outbox", onOutbox);
     // The card the server marked (a new outlet's, or the first reading still due) takes the

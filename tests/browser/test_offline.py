@@ -443,26 +443,36 @@ def test_a_new_worker_deletes_every_older_cache(page):
             "/static/js/boot.js"} <= set(shell)
 
 
-def test_a_slipped_decimal_point_sent_later_is_asked_not_refused(apprentice, live_app, context):
+def test_a_slipped_decimal_point_offline_is_asked_and_never_sent_as_typed(apprentice,
+                                                                          live_app, context):
     page = apprentice
     _, circuit_id = seed_circuit(live_app)
     open_step(page, circuit_id)
+    # card b has no band (as before step 1 is in): only the server can ask, when it is reached
+    card(page, "r-ln-b").evaluate("c => { c.removeAttribute('data-low'); "
+                                  "c.removeAttribute('data-high'); }")
     context.set_offline(True)
     try:
         enter(page, "r-ln-a", "2.6")  # expected about 0.26 Ω: (0.52 + 0.52) / 4
-        expect(card(page, "r-ln-a").locator(".queued")).to_be_visible()
+        asked = card(page, "r-ln-a").locator("[data-slip]")  # the card's band asks at once
+        expect(asked.get_by_role("button")).to_have_text(["0.26 Ω", "keep 2.6 Ω"])
+        enter(page, "r-ln-b", "3.1")
+        expect(card(page, "r-ln-b").locator(".queued")).to_be_visible()
     finally:
         context.set_offline(False)
-    question = card(page, "r-ln-a").locator("[data-slip]")
-    expect(question.get_by_role("button")).to_have_text(["0.26 Ω", "keep 2.6 Ω"])
+    server = card(page, "r-ln-b").locator("[data-slip]")  # asked by the server on replay
+    expect(server.get_by_role("button")).to_have_text(["0.31 Ω", "keep 3.1 Ω"])
     expect(page.locator("#not-accepted")).to_have_count(0)
-    assert [i["state"] for i in items(page)] == ["question"]
-    assert outlet_reading(live_app, circuit_id, "a") is None
-    page.reload()  # the question stays on the phone, answered from the list
+    assert sorted(i["state"] for i in items(page)) == ["question", "question"]
+    assert outlets_of(live_app, circuit_id)[:2] == [("a", "Kitchen by door", None, None),
+                                                    ("b", "Lounge window", None, None)]
+    page.reload()  # the questions stay on the phone, answered from the list
     listed = page.locator("#outbox-questions")
     expect(listed).to_contain_text("L–N at outlet a = 2.6")
+    expect(listed).to_contain_text("L–N at outlet b = 3.1")
     listed.get_by_role("button", name="0.26 Ω").tap()
+    listed.get_by_role("button", name="keep 3.10 Ω").tap()
     expect(listed).to_have_count(0)
-    wait_sent(page, 1)
+    wait_sent(page, 2)
     assert outlet_reading(live_app, circuit_id, "a") == "0.26"
-    assert [i["state"] for i in items(page)] == ["sent"]
+    assert outlet_reading(live_app, circuit_id, "b") == "3.1"
