@@ -52,11 +52,11 @@ def may_assign_tester(user, job) -> bool:
 
 
 def may_submit(user, job) -> bool:
-    """Who may submit a job for review: its tester, and for an apprentice's job (the
-    apprentice is its tester) also the tester the apprentice works under. Never a supervisor:
-    the person who reviews a job does not also put it forward (they reassign the tester)."""
+    """Who may submit a job for review: its tester or a supervisor, and for an apprentice's
+    job (the apprentice is its tester) also the tester the apprentice works under. Like anyone,
+    a supervisor submitting a job with problems must give a reason (review/signoff.py)."""
     if user.role in REVIEW_ROLES:
-        return False
+        return True
     if job.tester_id == user.id:
         return True
     if job.tester_id is None:

@@ -306,14 +306,14 @@ def test_one_failing_diagnosis_is_logged_and_breaks_no_page(app, supervisor, mak
     caplog.set_level(logging.INFO, logger="fieldapp")
     good = make_circuit(status="submitted")
     bad = make_circuit(status="submitted", description="the bad one")
-    real = records.diagnosis_for
+    real = records.diagnoses.diagnosis_for
 
     def sometimes(record):
         if record["circuit"]["description"] == "the bad one":
             raise ZeroDivisionError("a bug in one diagnosis")
         return real(record)
 
-    monkeypatch.setattr(records, "diagnosis_for", sometimes)
+    monkeypatch.setattr(records.diagnoses, "diagnosis_for", sometimes)
     assert supervisor.get("/review/").status_code == 200
     assert supervisor.get(f"/circuits/{bad}/results").status_code == 200
     assert supervisor.get(f"/circuits/{good}/results").status_code == 200

@@ -47,7 +47,7 @@ def _status(app, job_id):
 # (job's tester, who acts, may submit)
 SUBMIT = [
     ("test", "test", True), ("test", "test2", False), ("test", "appr", False),
-    ("test", "super", False),  # a supervisor reviews; reassigns the tester, never submits
+    ("test", "super", True),  # the job's tester or a supervisor may submit
     ("appr", "appr", True), ("appr", "test", True),  # an apprentice's tester
     ("appr", "test2", False),
 ]
