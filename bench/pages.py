@@ -171,7 +171,6 @@ def main() -> int:
     from playwright.sync_api import sync_playwright
     from werkzeug.serving import make_server
 
-    import fieldapp.manage  # noqa: F401  (first: main's blueprints import in a cycle otherwise)
     from fieldapp import create_app
     from fieldapp.extensions import db
 
