@@ -43,21 +43,6 @@
     }
   }
 
-  /* Offline there is no diagnosis, but the card carries the band the server last gave for
-   * this reading (data-low / data-high): say at once whether the value is in it. */
-  function bandNote(card, value) {
-    var low = parseFloat(card.getAttribute("data-low"));
-    var high = parseFloat(card.getAttribute("data-high"));
-    if (!isFinite(low) || !isFinite(high)) return "";
-    var band = low.toFixed(2) + " to " + high.toFixed(2) + " Ω";
-    if (value === "OL") return " OL where " + band + " was expected: check the probe contact and the board joins.";
-    var n = parseFloat(String(value).replace(",", "."));
-    if (!isFinite(n)) return "";
-    if (n < low) return " Below the expected " + band + ": check before moving on.";
-    if (n > high) return " Above the expected " + band + ": check before moving on.";
-    return " Within the expected " + band + ".";
-  }
-
   function applyReply(card, reply) {
     RT.overlay.setValue(card, reply.value, false);
     card.setAttribute("data-server-value", util.ohm(reply.value));
@@ -81,7 +66,7 @@
     entry.shown = true;
     RT.overlay.setValue(entry.card, entry.value, true);
     note(entry.card, "Saved on this phone: " + entry.words + ". It will be sent when back " +
-      "online." + bandNote(entry.card, entry.value));
+      "online." + util.bandNote(entry.card, entry.value));
   }
 
   /* No server to ask: the card's band asks about a slipped decimal point, and the item

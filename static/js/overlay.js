@@ -124,6 +124,12 @@
     strong.textContent = util.ohm(value);
     var line = strong.closest(".now");
     if (line) line.hidden = false;
+    var feedback = card.querySelector("[data-feedback]");
+    if (waiting && feedback) {
+      // the server's feedback was about the value it had: say where this one stands instead
+      if (card.serverFeedback === undefined) card.serverFeedback = feedback.innerHTML;
+      feedback.textContent = "Waiting to send." + util.bandNote(card, value);
+    }
     var tag = card.querySelector(".queued");
     if (waiting && !tag) {
       tag = el("span", { "class": "badge queued" }, "waiting to send");
@@ -144,6 +150,11 @@
     strong.closest(".now").hidden = !shown;
     var tag = card.querySelector(".queued");
     if (tag) tag.remove();
+    var feedback = card.querySelector("[data-feedback]");
+    if (feedback && card.serverFeedback !== undefined) {
+      feedback.innerHTML = card.serverFeedback;
+      card.serverFeedback = undefined;
+    }
     if (!shown) card.classList.add("pending");
   }
 

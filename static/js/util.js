@@ -5,6 +5,7 @@
  *   RT.util.pageUser()      {id, name} of the user the page was made for, or null
  *   RT.util.clock(date)     "14:32" today, "1 Dec 14:32" another day (phone's local time)
  *   RT.util.ohm(value)      "0.27 Ω" or "OL"
+ *   RT.util.bandNote(card, value)  " Within the expected 0.30 to 0.42 Ω." from the card's band
  */
 (function (root) {
   "use strict";
@@ -66,12 +67,27 @@
     return isFinite(n) ? n.toFixed(2) + " Ω" : String(value);
   }
 
+  /* Offline there is no diagnosis, but a reading's card carries the band the server last gave
+   * for it (data-low / data-high): whether a value is in it, in words ("" when no band). */
+  function bandNote(card, value) {
+    var low = parseFloat(card.getAttribute("data-low"));
+    var high = parseFloat(card.getAttribute("data-high"));
+    if (!isFinite(low) || !isFinite(high)) return "";
+    var band = low.toFixed(2) + " to " + high.toFixed(2) + " Ω";
+    if (value === "OL") return " OL where " + band + " was expected: check the probe contact and the board joins.";
+    var n = parseFloat(String(value).replace(",", "."));
+    if (!isFinite(n)) return "";
+    if (n < low) return " Below the expected " + band + ": check before moving on.";
+    if (n > high) return " Above the expected " + band + ": check before moving on.";
+    return " Within the expected " + band + ".";
+  }
+
   function count(n, one, many) {
     return n + " " + (n === 1 ? one : many);
   }
 
   RT.util = {
     NAMES: NAMES, newClientId: newClientId, csrfToken: csrfToken, deviceLabel: deviceLabel,
-    pageUser: pageUser, clock: clock, ohm: ohm, count: count,
+    pageUser: pageUser, clock: clock, ohm: ohm, count: count, bandNote: bandNote,
   };
 })(self);

@@ -150,6 +150,28 @@ def test_offline_reload_shows_what_the_phone_knows(apprentice, live_app, context
     assert waiting(page) == 0
 
 
+def test_a_correction_waiting_offline_is_judged_on_its_own_value(apprentice, live_app, context):
+    """The card never shows the server's words about the old value beside the new one."""
+    page = apprentice
+    _, circuit_id = seed_circuit(live_app)
+    open_step(page, circuit_id)
+    enter(page, "r-ln-a", "0.26")
+    wait_sent(page, 1)
+    page.reload()  # the kept copy now has 0.26 and the server's feedback on it
+    expect(card(page, "r-ln-a").locator("[data-feedback]")).to_contain_text("Expected about")
+    context.set_offline(True)
+    try:
+        enter(page, "r-ln-a", "0.40")
+        page.reload()
+        fb = card(page, "r-ln-a").locator("[data-feedback]")
+        # (0.52 + 0.52) / 4 = 0.26 Ω, ±0.05 Ω (common practice): 0.40 is above the band
+        expect(fb).to_contain_text("Waiting to send. Above the expected 0.21 to 0.31 Ω")
+        expect(fb).not_to_contain_text("Expected about")
+    finally:
+        context.set_offline(False)
+    expect(status(page)).to_contain_text("Sent 1 reading")
+
+
 def test_a_page_never_opened_here_shows_the_offline_page(apprentice, live_app, context):
     page = apprentice
     _, circuit_id = seed_circuit(live_app)
