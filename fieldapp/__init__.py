@@ -11,9 +11,8 @@ import os
 from pathlib import Path
 
 from flask import Flask, redirect, request, send_from_directory, url_for
-from flask_compress import Compress
 
-from fieldapp import applog, background, errors, labels, security
+from fieldapp import applog, background, compression, errors, labels, security
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
 from fieldapp.models import utcnow
@@ -74,9 +73,7 @@ REVALIDATE = "no-cache"
 
 
 def _register_cache_policy(app: Flask) -> None:
-    app.config.setdefault("COMPRESS_MIN_SIZE", 500)
-    app.config.setdefault("COMPRESS_STREAMS", False)
-    Compress(app)
+    compression.install(app)
 
     @app.after_request
     def cache_policy(response):
@@ -87,6 +84,7 @@ def _register_cache_policy(app: Flask) -> None:
                 # the response
                 response.direct_passthrough = False
                 response.make_sequence()
+                response = compression.static_brotli(response)
         elif response.mimetype in ("text/html", "application/json"):
             response.headers["Cache-Control"] = NO_STORE
         return response

@@ -150,8 +150,8 @@ def _limit(description: str, row: LimitRow) -> DeviceLimit:
         description=description, standard=row.standard, curve=row.curve,
         rating_a=float(row.rating_a), zs_tabulated_ohm=row.zs_ohm,
         zs_max_ohm=measured_limit_ohm(row.zs_ohm),
-        source=f"{row.edition} {row.table}: {row.basis} (checked: {row.where_checked}); "
-               f"{_MEASURED_NOTE}",
+        # the sheet prints the edition and table; where each row was checked stays in the data
+        source=f"{row.edition} {row.table}: {row.basis}; {_MEASURED_NOTE}",
     )
 
 

@@ -61,7 +61,7 @@ def insulation_result(test: RingTest) -> dict[str, Any] | None:
             "readings": {k: format_ir(v) for k, v in values.items()}, "ok": ok,
             "all_ok": all_ok,
             "source": f"{row.edition} {row.table}, {row.band}: {row.min_mohm:g} MΩ at "
-                      f"{row.test_v:g} V d.c. (checked: {row.where_checked})"}
+                      f"{row.test_v:g} V d.c."}
 
 
 def insulation_findings(result: dict[str, Any] | None) -> list[Finding]:

@@ -36,8 +36,7 @@ def rcd_result(test: RingTest) -> dict[str, Any] | None:
             "max_trip_ms": row.max_trip_ms,
             "trip_ok": None if rcd.trip_ms is None else rcd.trip_ms <= row.max_trip_ms,
             "button_ok": rcd.button_ok,
-            "source": f"{row.standard}: {row.max_trip_ms:g} ms at {row.test} ({row.edition}; "
-                      f"checked: {row.where_checked})"}
+            "source": f"{row.standard}: {row.max_trip_ms:g} ms at {row.test} ({row.edition})"}
 
 
 def rcd_findings(result: dict[str, Any] | None) -> list[Finding]:

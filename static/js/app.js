@@ -1,47 +1,41 @@
 /* Instant feedback on the reading pages. Only an enhancement: every form also works as a
-   plain post. A reading form is sent to the JSON endpoint (data-api) with its client id; the
-   reply's feedback and leading diagnosis replace the page's in place. When the network is
-   not there, window.ringtestOffline.enqueue(url, body) is used if the page has it, else the
-   form is posted the ordinary way. */
-(function () {
+ * plain post. A reading goes into the outbox (static/js/outbox.js) and is sent at once when
+ * there is a signal; the server's feedback and leading diagnosis then replace the card's in
+ * place. Without a signal the card shows the reading as waiting, with the band the server
+ * last gave for it. If the phone cannot store it, the card says so at once. A reading that
+ * looks like a slipped decimal point is not stored: the server's two one-tap answers (the
+ * corrected value, or keep it as typed) appear on the card.
+ */
+(function (root) {
   "use strict";
+  var RT = root.RT = root.RT || {};
+  var util = RT.util;
 
-  function csrfToken() {
-    var meta = document.querySelector('meta[name="csrf-token"]');
-    return meta ? meta.getAttribute("content") : "";
-  }
-
-  function newId() {
-    if (window.crypto && window.crypto.randomUUID) {
-      return window.crypto.randomUUID();
-    }
-    var s = "";
-    for (var i = 0; i < 32; i++) {
-      s += Math.floor(Math.random() * 16).toString(16);
-    }
-    return s.slice(0, 8) + "-" + s.slice(8, 12) + "-" + s.slice(12, 16) + "-" + s.slice(16);
-  }
-
-  function deviceLabel() {
-    try {
-      return localStorage.getItem("ringtest-device") || navigator.userAgent;
-    } catch (e) {
-      return navigator.userAgent;
-    }
-  }
-
-  function showError(form, text) {
+  function showError(form, message) {
     var box = form.querySelector(".js-error");
-    if (!box) { return; }
-    box.textContent = text || "";
-    box.hidden = !text;
+    if (!box) return;
+    box.textContent = message || "";
+    box.hidden = !message;
     var input = form.querySelector('input[name="value"]');
-    if (input) { input.setAttribute("aria-invalid", text ? "true" : "false"); }
+    if (input) input.setAttribute("aria-invalid", message ? "true" : "false");
+  }
+
+  function note(card, message) {
+    var box = card.querySelector(".offline-note");
+    if (!box) {
+      box = document.createElement("p");
+      box.className = "offline-note";
+      var feedback = card.querySelector("[data-feedback]");
+      card.insertBefore(box, feedback ? feedback.nextSibling : null);
+    }
+    box.className = "offline-note";
+    box.removeAttribute("role");
+    box.textContent = message;
+    box.hidden = !message;
   }
 
   function focusNext(anchor) {
-    if (!anchor) { return; }
-    var card = document.getElementById(anchor);
+    var card = anchor && document.getElementById(anchor);
     var input = card && card.querySelector('input[name="value"]');
     if (input) {
       card.scrollIntoView({ block: "center" });
@@ -49,192 +43,130 @@
     }
   }
 
-  function showSlip(form, data) {
-    // The decimal point probably slipped: the server's two one-tap answers replace the error.
-    var card = form.closest(".reading");
-    var box = card && card.querySelector("[data-slip-box]");
-    if (!box || !data.html || !data.html.slip) { return false; }
-    showError(form, "");
-    box.innerHTML = data.html.slip;
-    box.querySelectorAll("form").forEach(enhance);
-    var first = box.querySelector("button");
-    if (first) { first.focus(); }
-    return true;
-  }
-
-  // Offline the server cannot ask about a slipped decimal point, so the page asks with the
-  // band the server put on the card (data-low, data-high): the same question as the server's,
-  // asked only when the reading is out of the band and the same digits one place left or
-  // right are inside it.
-  function shifted(text, places) {
-    var value = parseFloat(text.replace(",", "."));
-    var decimals = (text.replace(",", ".").split(".")[1] || "").length + places;
-    var out = (places > 0 ? value / 10 : value * 10).toFixed(Math.max(decimals, 0));
-    return out.indexOf(".") >= 0 ? out.replace(/0+$/, "").replace(/\.$/, "") : out;
-  }
-
-  function localSlip(form, body) {
-    var card = form.closest(".reading");
-    if (!card || body.keep || body.value === "OL") { return null; }
-    var low = parseFloat(card.getAttribute("data-low"));
-    var high = parseFloat(card.getAttribute("data-high"));
-    var value = parseFloat(String(body.value).replace(",", "."));
-    if (!(value > 0) || isNaN(low) || isNaN(high) || (value >= low && value <= high)) { return null; }
-    var candidates = [shifted(String(body.value), 1), shifted(String(body.value), -1)];
-    for (var i = 0; i < candidates.length; i++) {
-      var c = parseFloat(candidates[i]);
-      if (c >= low && c <= high) {
-        return { typed: String(parseFloat(String(body.value).replace(",", "."))), suggested: candidates[i] };
-      }
-    }
-    return null;
-  }
-
-  function hidden(name, value) {
-    var input = document.createElement("input");
-    input.type = "hidden";
-    input.name = name;
-    input.value = value;
-    return input;
-  }
-
-  function showLocalSlip(form, body, slip) {
-    var card = form.closest(".reading");
-    var box = card && card.querySelector("[data-slip-box]");
-    if (!box) { return false; }
-    box.textContent = "";
-    var wrap = document.createElement("div");
-    wrap.className = "slip";
-    wrap.setAttribute("data-slip", "");
-    wrap.setAttribute("role", "alert");
-    var p = document.createElement("p");
-    var strong = document.createElement("strong");
-    strong.textContent = "Decimal point slipped?";
-    p.appendChild(strong);
-    p.appendChild(document.createTextNode(" " + slip.typed + " Ω is out of the expected range here."));
-    wrap.appendChild(p);
-    var choices = document.createElement("div");
-    choices.className = "slip-choices";
-    [[slip.suggested, "", slip.suggested + " Ω"], [slip.typed, "1", "keep " + slip.typed + " Ω"]].forEach(function (c) {
-      var f = document.createElement("form");
-      f.className = "reading-form slip-form";
-      f.method = "post";
-      f.action = form.action;
-      f.setAttribute("data-api", form.getAttribute("data-api"));
-      f.appendChild(hidden("csrf_token", csrfToken()));
-      f.appendChild(hidden("field", body.step));
-      f.appendChild(hidden("outlet", body.outlet || ""));
-      f.appendChild(hidden("client_id", body.client_id));
-      f.appendChild(hidden("device", body.device));
-      f.appendChild(hidden("value", c[0]));
-      f.appendChild(hidden("keep", c[1]));
-      var b = document.createElement("button");
-      b.type = "submit";
-      b.name = "save";
-      b.value = "1";
-      b.className = c[1] ? "button" : "button primary";
-      b.textContent = c[2];
-      f.appendChild(b);
-      choices.appendChild(f);
-      enhance(f);
-    });
-    wrap.appendChild(choices);
-    box.appendChild(wrap);
-    showError(form, "");
-    choices.querySelector("button").focus();
-    return true;
-  }
-
-  function applyReply(form, reply) {
-    var card = form.closest(".reading");
-    if (card) {
-      var value = card.querySelector("[data-value]");
-      if (value) {
-        value.textContent = reply.value === "OL" ? "OL" : Number(reply.value).toFixed(2) + " Ω";
-        var line = value.closest(".now");
-        if (line) { line.hidden = false; }
-      }
-      var feedback = card.querySelector("[data-feedback]");
-      if (feedback && reply.html) { feedback.innerHTML = reply.html.feedback; }
-      card.classList.remove("pending");
-      var label = form.querySelector("label");
-      if (label) { label.textContent = "Correct the reading (Ω)"; }
-    }
-    var slipBox = card && card.querySelector("[data-slip-box]");
-    if (slipBox) { slipBox.innerHTML = ""; }
+  function applyReply(card, reply) {
+    RT.overlay.setValue(card, reply.value, false);
+    card.setAttribute("data-server-value", util.ohm(reply.value));
+    var feedback = card.querySelector("[data-feedback]");
+    if (feedback && reply.html) feedback.innerHTML = reply.html.feedback;
+    var label = card.querySelector("form label");
+    if (label) label.textContent = "Correct the reading (Ω)";
+    var slipBox = card.querySelector("[data-slip-box]");
+    if (slipBox) slipBox.innerHTML = "";
     var leading = document.getElementById("leading");
-    if (leading && reply.html) { leading.innerHTML = reply.html.leading; }
-    form.querySelector('input[name="value"]').value = "";
-    (card || form).querySelectorAll('input[name="client_id"]').forEach(function (input) {
-      input.value = newId();
-    });
-    focusNext(reply.next_anchor);
+    if (leading && reply.html) leading.innerHTML = reply.html.leading;
+    note(card, "");
+  }
+
+  /* Cards waiting for the server's answer to an item, by item id. */
+  var pending = {};
+
+  /* Kept on the phone, not on the server yet: the card says so (with the band it last had). */
+  function showWaiting(entry) {
+    if (entry.shown) return;
+    entry.shown = true;
+    RT.overlay.setValue(entry.card, entry.value, true);
+    note(entry.card, "Saved on this phone: " + entry.words + ". It will be sent when back " +
+      "online." + util.bandNote(entry.card, entry.value));
+  }
+
+  /* No server to ask: the card's band asks about a slipped decimal point, and the item
+   * waits in the outbox as a question (answered here or from the list), never sent as typed. */
+  function askLocally(id, entry) {
+    var slip = RT.slip.local(entry.form, { value: entry.value, keep: entry.keep });
+    if (!slip) return false;
+    delete pending[id];
+    RT.overlay.restore(entry.card);
+    note(entry.card, "");
+    RT.outbox.update(id, { state: "question", reply: { slip: slip },
+      reason: "Decimal point slipped? " + slip.typed + " Ω is out of the expected range here." })
+      .then(RT.status.refresh);
+    var get = function (name) {
+      var input = entry.form.querySelector('input[name="' + name + '"]');
+      return input ? input.value : "";
+    };
+    RT.slip.askHere(entry.form, { step: get("field"), outlet: get("outlet"), client_id: id,
+      device: util.deviceLabel(), value: entry.value }, slip);
+    return true;
+  }
+
+  function onOutbox(event) {
+    var d = event.detail || {};
+    if (d.done) {  // no signal, signed out or another sender: what is pending waits here
+      if (d.report && d.report.outcome !== "done" && d.report.outcome !== "busy") {
+        Object.keys(pending).forEach(function (id) {
+          if (!askLocally(id, pending[id])) showWaiting(pending[id]);
+        });
+      }
+      return;
+    }
+    if (!d.item || !pending[d.item.id]) return;
+    var entry = pending[d.item.id];
+    delete pending[d.item.id];
+    if (d.state === "sent" && d.item.kind === "reading") {
+      applyReply(entry.card, d.item.reply || {});
+      if (entry.focus && d.item.reply) focusNext(d.item.reply.next_anchor);
+    } else if (d.state === "question") {
+      RT.overlay.restore(entry.card);
+      note(entry.card, "");
+      var html = d.item.reply && d.item.reply.html && d.item.reply.html.slip;
+      if (!RT.slip.show(entry.card, entry.form, html)) showError(entry.form, d.item.reason);
+    } else if (d.state === "refused") {
+      RT.overlay.restore(entry.card); // nothing was stored: the card shows what the server has
+      note(entry.card, "");
+      showError(entry.form, "Not accepted: " + d.item.reason + " (kept in the list at the top until you enter it again or discard it).");
+    }
   }
 
   function send(form, ol) {
+    var card = form.closest(".reading");
     var input = form.querySelector('input[name="value"]');
-    var outlet = form.querySelector('input[name="outlet"]').value;
-    var body = {
-      step: form.querySelector('input[name="field"]').value,
-      outlet: outlet || null,
-      value: ol ? "OL" : input.value.trim(),
-      client_id: form.querySelector('input[name="client_id"]').value,
-      device: deviceLabel(),
-      keep: (form.querySelector('input[name="keep"]') || {}).value === "1"
-    };
-    if (!ol && body.value === "") {
+    var value = ol ? "OL" : input.value.trim();
+    if (!value) {
       showError(form, "Type the reading in ohms, or tap OL if the meter shows OL.");
       input.focus();
       return;
     }
-    var buttons = form.querySelectorAll("button, input[type=submit]");
-    buttons.forEach(function (b) { b.disabled = true; });
-    fetch(form.getAttribute("data-api"), {
-      method: "POST",
-      credentials: "same-origin",
-      headers: { "Content-Type": "application/json", "X-CSRFToken": csrfToken() },
-      body: JSON.stringify(body)
-    }).then(function (response) {
-      return response.json().then(function (data) { return { status: response.status, data: data }; });
-    }).then(function (result) {
-      if (result.status === 200) {
-        showError(form, "");
-        applyReply(form, result.data);
-      } else if (result.data && result.data.slip && showSlip(form, result.data)) {
-        return;
-      } else {
-        var errors = (result.data && result.data.errors) || {};
-        var first = Object.keys(errors)[0];
-        showError(form, first ? errors[first].join(" ") : "Not saved.");
+    showError(form, "");
+    var field = form.querySelector('input[name="field"]').value;
+    var key = form.querySelector('input[name="outlet"]').value || null;
+    var clientKey = card.getAttribute("data-client-key");
+    if (clientKey && card.getAttribute("data-outlet")) clientKey = null; // it has its key now
+    var idInput = form.querySelector('input[name="client_id"]');
+    var keep = form.querySelector('input[name="keep"]');
+    var body = { step: field, outlet: key, value: value,
+      client_id: idInput.value || util.newClientId(), keep: !!keep && keep.value === "1" };
+    var where = key ? " at outlet " + key : clientKey ? " at the new outlet" : "";
+    var words = (util.NAMES[field] || field) + where + " = " + value;
+    var entry = RT.forms.item("reading", body, words, RT.forms.target("reading", field,
+      key || clientKey, form), clientKey, form);
+    RT.forms.queue(entry).then(function () {
+      var main = card.querySelector("form.reading-form:not(.slip-form)") || form;
+      var waitingEntry = { card: card, form: main, focus: true, value: value, words: words,
+        keep: body.keep };
+      pending[entry.id] = waitingEntry;
+      // the next reading from this card is a new write
+      card.querySelectorAll('input[name="client_id"]').forEach(function (i) { i.value = util.newClientId(); });
+      var slipBox = card.querySelector("[data-slip-box]");
+      if (slipBox && form.classList.contains("slip-form")) slipBox.innerHTML = "";
+      else input.value = "";
+      if (!navigator.onLine) {  // online, the card changes when the server has it
+        if (askLocally(entry.id, waitingEntry)) return;
+        showWaiting(waitingEntry);
+        var next = card.nextElementSibling;
+        while (next && !next.classList.contains("pending")) next = next.nextElementSibling;
+        if (next) focusNext(next.id);
       }
-    }).catch(function () {
-      var slip = localSlip(form, body);
-      if (slip && showLocalSlip(form, body, slip)) { return; }
-      var card = form.closest(".reading");
-      var offline = window.ringtestOffline;
-      if (offline && typeof offline.enqueue === "function") {
-        offline.enqueue(form.getAttribute("data-api"), body);
-        showError(form, "");
-        var feedback = card && card.querySelector("[data-feedback]");
-        if (feedback) { feedback.textContent = "Kept on this phone; it will be sent when the signal is back."; }
-        (card || form).querySelectorAll('input[name="client_id"]').forEach(function (input) {
-          input.value = newId();
-        });
-        var slipBox = card && card.querySelector("[data-slip-box]");
-        if (slipBox) { slipBox.textContent = ""; }
-      } else {
-        if (ol) { form.querySelector('input[name="value"]').value = "OL"; }
-        form.submit();
-      }
-    }).finally(function () {
-      buttons.forEach(function (b) { b.disabled = false; });
+    }, function (error) {
+      RT.forms.storageFull(card, error);
     });
   }
 
   function enhance(form) {
+    if (form.getAttribute("data-enhanced")) return;
+    form.setAttribute("data-enhanced", "1");
     var device = form.querySelector('input[name="device"]');
-    if (device) { device.value = deviceLabel(); }
-    if (!form.classList.contains("reading-form") || !window.fetch) { return; }
+    if (device) device.value = util.deviceLabel();
+    if (!form.classList.contains("reading-form")) return;
     var olPressed = false;
     form.querySelectorAll('[name="ol"]').forEach(function (b) {
       b.addEventListener("click", function () { olPressed = true; });
@@ -244,44 +176,33 @@
     });
     form.addEventListener("submit", function (event) {
       event.preventDefault();
-      var ol = olPressed;
+      var ol = olPressed || (event.submitter && event.submitter.name === "ol");
       olPressed = false;
       send(form, ol);
     });
   }
 
-  // For the offline script: the same decimal-point question for a reading it queues itself.
-  window.ringtestSlip = {
-    check: function (form, value) {
-      return localSlip(form, { value: String(value), keep: false });
-    },
-    ask: function (form, value, slip) {
-      var get = function (name) {
-        var input = form.querySelector('input[name="' + name + '"]');
-        return input ? input.value : "";
-      };
-      return showLocalSlip(form, { step: get("field"), outlet: get("outlet"),
-        client_id: get("client_id"), device: deviceLabel(), value: String(value) }, slip);
-    }
-  };
-
-  document.addEventListener("DOMContentLoaded", function () {
+  function start() {
     document.querySelectorAll("form").forEach(enhance);
+    ["ringtest:card", "ringtest:forms"].forEach(function (name) {
+      document.addEventListener(name, function (event) {
+        event.detail.querySelectorAll("form").forEach(enhance);
+      });
+    });
+    root.addEventListener("ringtest:outbox", onOutbox);
     // The card the server marked (a new outlet's, or the first reading still due) takes the
     // focus. A URL fragment (#r-ln-c) names a card too; the browser moves the focus to the
     // fragment once the page has loaded, so that focus waits for the load.
     var target = location.hash && document.getElementById(location.hash.slice(1));
     if (target && target.classList.contains("reading")) {
-      window.addEventListener("load", function () {
-        window.setTimeout(function () { focusNext(target.id); }, 0);
+      root.addEventListener("load", function () {
+        root.setTimeout(function () { focusNext(target.id); }, 0);
       });
     } else {
       var focused = document.querySelector(".reading.focus");
-      if (focused) { focusNext(focused.id); }
+      if (focused) focusNext(focused.id);
     }
-    var sw = document.body.getAttribute("data-sw");
-    if (sw && "serviceWorker" in navigator) {
-      navigator.serviceWorker.register(sw, { scope: "/" }).catch(function () { /* optional */ });
-    }
-  });
-})();
+  }
+
+  RT.app = { start: start };
+})(self);

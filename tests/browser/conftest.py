@@ -13,6 +13,7 @@ import threading
 from dataclasses import dataclass
 
 import pytest
+from phone import PASSWORD
 from playwright.sync_api import expect
 
 CHROMIUM = "/usr/bin/chromium"
@@ -22,7 +23,6 @@ CHROMIUM_FLAGS = [
     "--disable-background-networking", "--disable-component-update", "--disable-sync",
 ]
 PHONE = {"width": 390, "height": 844}
-PASSWORD = "loopback-only-7"
 #: Invented people for the browser tests, one per role.
 USERS = (
     ("apprentice", "Tegan Pryce", "apprentice"),

@@ -103,8 +103,9 @@ def shell_urls() -> list[str]:
 
 def test_service_worker_shell_lists_files_that_exist():
     urls = shell_urls()
-    for required in ("/static/offline.html", "/static/app.css", "/static/js/offline.js",
-                     "/static/manifest.webmanifest", "/static/icons/icon-192.png"):
+    for required in ("/static/offline.html", "/static/app.css", "/static/js/outbox.js",
+                     "/static/js/replay.js", "/static/manifest.webmanifest",
+                     "/static/icons/icon.svg"):
         assert required in urls
     for url in urls:
         assert (ROOT / url.lstrip("/")).is_file(), url
@@ -115,6 +116,31 @@ def test_service_worker_cache_names_are_versioned():
     assert version
     assert 'VERSION + "-shell"' in SW and 'VERSION + "-pages"' in SW
     assert "caches.delete(name)" in SW  # old versions go on activate
+    # every script a page loads is in the shell, and the worker loads its own from there
+    base = (ROOT / "templates" / "base.html").read_text(encoding="utf-8")
+    names = re.search(r"{% for name in \(([^)]*)\) %}", base).group(1)
+    for name in re.findall(r"'(\w+)'", names):
+        assert f'"/static/js/{name}.js"' in SW, name
+    for url in re.findall(r'importScripts\(([^)]*)\)', SW)[0].split(","):
+        assert url.strip().strip('"') in shell_urls()
+
+
+def test_one_service_worker_registration_and_no_weak_ids():
+    scripts = {p.name: p.read_text(encoding="utf-8") for p in (STATIC / "js").glob("*.js")}
+    assert [n for n, text in scripts.items() if '"/sw.js"' in text] == ["boot.js"]
+    assert scripts["boot.js"].count(".register(") == 1
+    assert [n for n, text in scripts.items() if "Math.random" in text] == []
+    assert [n for n, text in scripts.items() if "randomUUID" in text] == ["util.js"]
+    assert [n for n, text in scripts.items() if "csrf-token" in text] == ["util.js"]
+    assert [n for n, text in scripts.items() if "localStorage.getItem(key)" in text] == []
+    for name, text in scripts.items():
+        assert len(text.splitlines()) <= 300, name
+
+
+def test_pages_carry_no_inline_script():
+    for path in [*(ROOT / "templates").rglob("*.html"), STATIC / "offline.html"]:
+        html = path.read_text(encoding="utf-8")
+        assert not re.search(r"<script(?![^>]*\bsrc=)[^>]*>", html), path
 
 
 def test_offline_page_carries_the_caution_and_no_remote_assets():

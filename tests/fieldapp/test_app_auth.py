@@ -203,8 +203,9 @@ def test_service_worker_is_served_from_the_root(app, client, tmp_path):
 
 
 def test_offline_script_is_linked_from_every_page(client, tester):
-    assert b"/static/js/offline.js" in client.get("/login").data
-    assert b"/static/js/offline.js" in tester.get("/jobs/").data
+    for page in (client.get("/login").data, tester.get("/jobs/").data):
+        for name in ("util", "outbox", "replay", "status", "boot"):
+            assert f"/static/js/{name}.js".encode() in page
 
 
 def test_only_the_supervisor_sees_the_review_link(tester, supervisor, parse):

@@ -209,3 +209,22 @@ def test_pages_are_compressed_and_still_whole(tester, make_circuit):
         assert len(css.get_data()) < 6000
     with tester.application.app_context():
         assert db.session.scalar(select(func.count(Outlet.id))) == 20
+
+
+def test_static_files_go_as_brotli_once_made_and_answer_304_on_a_match(client):
+    import brotli
+
+    from fieldapp import ROOT
+
+    raw = (ROOT / "static" / "js" / "outbox.js").read_bytes()
+    with client.get("/static/js/outbox.js", headers={"Accept-Encoding": "gzip, br"}) as first:
+        assert first.headers["Content-Encoding"] == "br"
+        assert brotli.decompress(first.get_data()) == raw
+        assert len(first.get_data()) < len(raw) / 2.5
+        etag = first.headers["ETag"]
+    with client.get("/static/js/outbox.js", headers={"Accept-Encoding": "br",
+                                                      "If-None-Match": etag}) as again:
+        assert again.status_code == 304
+    with client.get("/static/js/outbox.js", headers={"Accept-Encoding": "gzip"}) as plain:
+        assert plain.headers["Content-Encoding"] == "gzip"
+        assert gzip.decompress(plain.get_data()) == raw
