@@ -66,6 +66,19 @@ STATUS_WORDS = {
     "pending": "not taken yet",
 }
 SEVERITY_WORDS = {"fault": "Fault", "warning": "Check", "info": "Note"}
+#: A job's status in words (badges, filters, sentences, the sheet).
+JOB_STATUS_WORDS = {
+    "in_progress": "in progress",
+    "submitted": "submitted",
+    "returned": "returned",
+    "approved": "approved",
+}
+
+
+def job_status_word(status: str | None, capital: bool = False) -> str:
+    """"submitted" (or "Submitted") for a job's status; the status itself when unknown."""
+    words = JOB_STATUS_WORDS.get(status or "", status or "")
+    return words[:1].upper() + words[1:] if capital else words
 
 
 def severity_word(severity: str | None) -> str:

@@ -40,6 +40,11 @@ def severity_word(severity: str | None) -> str:
     return labels.severity_word(severity)
 
 
+@bp.app_template_global("job_status_word")
+def job_status_word(status: str | None, capital: bool = False) -> str:
+    return labels.job_status_word(status, capital)
+
+
 @bp.app_template_global("fed_from")
 def fed_from(spur_from) -> str:
     return labels.fed_from(spur_from)

@@ -13,12 +13,9 @@ from fieldapp import labels
 #: Verdict words and the order of a job's verdict: the app's own (fieldapp/labels.py).
 VERDICT_WORDS = labels.VERDICT_WORDS
 VERDICT_ORDER = labels.VERDICT_ORDER
-STATUS_WORDS = {
-    "in_progress": "In progress",
-    "submitted": "Submitted for review",
-    "returned": "Returned to the tester",
-    "approved": "Approved",
-}
+#: A job's status as the sheet prints it (the app's one set of words, capitalised).
+STATUS_WORDS = {status: labels.job_status_word(status, capital=True)
+                for status in labels.JOB_STATUS_WORDS}
 READING_STATUS_WORDS = {
     "ok": "in band",
     "high": "HIGH",
