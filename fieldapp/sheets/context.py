@@ -195,5 +195,7 @@ def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *
              "date": _day(people.get("approved_at") or people.get("reviewed_at"))},
         ],
         "cautions": _cautions(diagnoses),
+        # the readings' names, as every screen names them (fieldapp/labels.py)
+        "reading_words": {field: labels.step_reading(field) for field in ("ln", "le")},
         "generated": when(generated_at or dt.datetime.now(dt.UTC).replace(tzinfo=None)),
     }
