@@ -5,7 +5,9 @@ nulled on every reading or on one step, a warmer cable for steps 2–3, worn soc
 from the front, a metallic cpc, an unsuitable meter, two faults at once, the typical site and
 a random site mix) it simulates healthy rings and rings with each fault class
 (``ringmath.simulate``: exact nodal analysis of a named-node netlist, random ring length,
-outlet count and spacing, spurs and fused spurs, shuffled visiting order) and prints:
+outlet count and spacing, spurs and fused spurs, shuffled visiting order; a third of the open
+conductors are one outlet's core off its terminal, which reads like swapped terminals) and
+prints:
 
 * healthy rings: false alarms (verdict not "satisfactory"); "wiring" = a wiring fault
   (fault severity) named at all, and at >= 80 % confidence; how many were called "retest";
@@ -25,17 +27,19 @@ outlet count and spacing, spurs and fused spurs, shuffled visiting order) and pr
   ``os.getloadavg()`` beside it.
 
 Run: ``.venv/bin/python bench/diagnosis.py [--quick] [--n N] [--healthy N] [--seed S]
-[--conditions clean,typical,...] [--show CODE|healthy|setup] [--list]``.
+[--conditions clean,typical,...] [--show CODE|healthy|setup] [--json FILE] [--list]``.
 """
 
 from __future__ import annotations
 
 import argparse
+import json
 import math
 import os
 import statistics
 import sys
 import time
+import zlib
 from pathlib import Path
 
 import numpy as np
@@ -85,7 +89,10 @@ def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: in
         if cond.pairs and code is not None:
             others = [c for c in FAULT_CODES if c != code]
             also = others[int(rng.integers(0, len(others)))]
-        record, truth = simulate(rng, code, also=also, nuisance=cond.draw(rng))
+        picks = {}
+        if code == "open_conductor" and rng.random() < 1 / 3:
+            picks["at"] = "terminal"  # one outlet's core off its terminal: reads like a swap
+        record, truth = simulate(rng, code, also=also, nuisance=cond.draw(rng), **picks)
         t0 = time.perf_counter()
         result = diagnose(record)
         row = score(result, truth, record, hand_rule(record))
@@ -239,6 +246,7 @@ def main() -> None:
     parser.add_argument("--conditions", default="", help="comma-separated condition keys")
     parser.add_argument("--quick", action="store_true", help="a few minutes on two cores")
     parser.add_argument("--list", action="store_true", help="list the conditions and stop")
+    parser.add_argument("--json", metavar="FILE", help="also write the summary figures as JSON")
     parser.add_argument("--show", metavar="WHAT", help="print the cases judged wrong: a fault"
                         " code, 'healthy' (false alarms) or 'setup' (set-up errors not named)")
     args = parser.parse_args()
@@ -257,7 +265,8 @@ def main() -> None:
           f" {os.cpu_count()} cores, {load()}")
     summary, every = [], []
     for key in keys:
-        rng = np.random.default_rng([args.seed, list(BY_KEY).index(key)])
+        # each condition its own stream, fixed by its key: adding a condition moves no other
+        rng = np.random.default_rng([args.seed, zlib.crc32(key.encode())])
         t0 = time.perf_counter()
         rows = run_condition(BY_KEY[key], rng, n, healthy, args.show)
         summary.append(print_condition(BY_KEY[key], rows, time.perf_counter() - t0))
@@ -265,6 +274,15 @@ def main() -> None:
     print_summary(summary, every)
     ms20 = timing(np.random.default_rng([args.seed, 999]), 5 if args.quick else 15)
     print_targets(summary, every, ms20)
+    if args.json:
+        claims = [r["claim"] for r in every if r["claim"] and r["claim"][1] is not None]
+        table, brier = calibration(claims)
+        doc = {"seed": args.seed, "n": n, "healthy": healthy, "load": os.getloadavg(),
+               "conditions": summary, "ms_20_outlets": ms20, "brier": brier,
+               "calibration": [dict(zip(("lo", "hi", "count", "stated", "observed"), row,
+                                        strict=True)) for row in table]}
+        text = json.dumps(doc, indent=1, default=float).replace("NaN", "null")
+        Path(args.json).write_text(text + "\n", encoding="utf-8")
 
 
 if __name__ == "__main__":

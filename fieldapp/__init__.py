@@ -13,7 +13,7 @@ from pathlib import Path
 from flask import Flask, redirect, request, send_from_directory, url_for
 from flask_compress import Compress
 
-from fieldapp import applog, errors, security
+from fieldapp import applog, background, errors, security
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
 from fieldapp.models import utcnow
@@ -24,7 +24,7 @@ ROOT = Path(__file__).resolve().parent.parent
 #: Blueprints built in this package; optional ones are registered when their module exists.
 BLUEPRINTS = ("fieldapp.auth", "fieldapp.jobs", "fieldapp.ringtest", "fieldapp.api",
               "fieldapp.review", "fieldapp.sheets", "fieldapp.transfer", "fieldapp.users",
-              "fieldapp.live")
+              "fieldapp.live.views")
 
 
 def create_app(config: dict | None = None) -> Flask:
@@ -49,6 +49,7 @@ def create_app(config: dict | None = None) -> Flask:
     db.init_app(app)
     with app.app_context():
         security.tune_sqlite(db.engine)
+    background.init_app(app)
     csrf.init_app(app)
     login_manager.init_app(app)
     login_manager.login_view = "auth.login"

@@ -68,4 +68,6 @@ def base_config(instance_path: str) -> dict:
         "REMEMBER_COOKIE_SAMESITE": "Lax",
         "WTF_CSRF_TIME_LIMIT": None,  # a long day on site must not expire the form
         "DEMO_PASSWORD": os.environ.get("FIELDAPP_DEMO_PASSWORD") or None,
+        # where the full diagnosis runs after a save (fieldapp/background.py)
+        "DIAGNOSIS_MODE": os.environ.get("FIELDAPP_DIAGNOSIS", "background").strip(),
     }

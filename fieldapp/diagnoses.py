@@ -25,7 +25,9 @@ from sqlalchemy.exc import IntegrityError, OperationalError
 import ringmath
 from fieldapp.extensions import db
 from fieldapp.models import StoredDiagnosis, utcnow
+from ringmath import checks
 from ringmath.diagnose import diagnose
+from ringmath.record import parse_record
 
 log = logging.getLogger(__name__)
 
@@ -68,6 +70,23 @@ def _store(record_hash: str, result_text: str) -> None:
         pass  # another worker stored the same record first: same result
     except OperationalError as error:  # busy database: it will be computed again later
         log.warning("diagnosis not stored (%s): %s", record_hash[:12], error)
+
+
+def stored(record: dict) -> dict | None:
+    """The stored diagnosis of ``record`` for this engine, or None (nothing is computed)."""
+    text = _load(record_key(record)[1])
+    return json.loads(text) if text is not None else None
+
+
+def instant(record: dict) -> dict | None:
+    """The instant checks alone (each reading's expected value, band and status, and the
+    expected values): no fit, so it costs milliseconds. None for a record that cannot be read.
+    """
+    try:
+        test = parse_record(record)
+    except ValueError:
+        return None
+    return {"readings": checks.reading_checks(test), "expected": checks.expected(test)}
 
 
 def diagnosis_for(record: dict) -> dict:

@@ -12,7 +12,6 @@ from sqlalchemy import select
 
 from fieldapp import changes
 from fieldapp.extensions import db
-from fieldapp.live.values import live_circuit_fields
 from fieldapp.models import Circuit, Job, Outlet, utcnow
 from ringmath import parse_document, parse_reading
 
@@ -24,6 +23,10 @@ def _split_reference(reference: str) -> tuple[str, str]:
 
 def circuit_fields(block: dict) -> dict:
     """Circuit columns from a record's ``circuit`` block (already checked by the parser)."""
+    # imported here: fieldapp.live is a blueprint package (it loads its views, which reach
+    # back to the packages that import this module)
+    from fieldapp.live.values import live_circuit_fields
+
     ocpd = block.get("ocpd") or {}
     rcd = block.get("rcd") or {}
     board, way = _split_reference(str(block.get("reference") or ""))

@@ -3,12 +3,14 @@
 - ``MAX_OUTLETS_PER_CIRCUIT`` = 60: a ring final circuit serves up to 100 m² of floor
   (BS 7671 Appendix 15, common practice); even a large open-plan ring rarely carries more
   than about 30 points, so 60 outlets (spurs and FCUs included) leaves room and no more.
-- ``MAX_CIRCUITS_PER_JOB`` = 60: a job covers one installation; a large three-phase board
-  has at most about 48 single-phase ways, and few of them are rings.
-- ``MAX_OUTLETS_PER_JOB`` = 400: a large office floor of a dozen well-filled rings. This
-  bounds the job sheet: about 50 A4 pages, printed in about 15 s on this kind of machine
-  (measured: 300 outlets, 38 pages, 8 s), where 60 circuits of 60 outlets would be ~450
-  pages and minutes of work.
+- ``MAX_CIRCUITS_PER_JOB`` = 24: a job covers one board or installation; a large
+  three-phase 12-way board has 36 single-phase ways, and rarely more than a dozen of them are
+  rings. A bigger installation is split into one job per board. Each circuit adds its own
+  pages, ring picture and plot to the sheet, so this bounds the PDF as much as the outlets.
+- ``MAX_OUTLETS_PER_JOB`` = 400: a large office floor of a dozen well-filled rings. With the
+  circuit limit this bounds the job sheet to about 50-100 A4 pages (measured on this kind of
+  machine: 5 circuits x 60 outlets, 38 pages, 8 s at load 4; 10 x 40, 43 pages, 52 s at load
+  10), where 60 circuits of 60 outlets would be ~450 pages and minutes of work.
 - Text fields: the lengths of the forms and the database columns; job notes 4,000
   characters.
 - ``MAX_DOCUMENT_BYTES`` = 1 MB: far above the largest job these limits allow (about 150 kB
@@ -21,7 +23,7 @@ fixed number of pages.
 """
 
 MAX_OUTLETS_PER_CIRCUIT = 60
-MAX_CIRCUITS_PER_JOB = 60
+MAX_CIRCUITS_PER_JOB = 24
 MAX_OUTLETS_PER_JOB = 400
 MAX_NOTES_CHARS = 4000
 MAX_DOCUMENT_BYTES = 1_000_000

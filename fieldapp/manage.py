@@ -87,10 +87,40 @@ def setup(app=None, out=sys.stdout, logins_out=None) -> None:
         jobs = load_demo_jobs(out=out)
         db.session.commit()
         print(f"database ready at revision {migrations.current_revision(db.engine)}", file=out)
+        if app.config.get("DIAGNOSIS_MODE") == "queue":
+            _queue_schema(app, out)
         if jobs:
             print(f"loaded {len(jobs)} demo job(s): "
                   + ", ".join(j.reference for j in jobs), file=out)
         print_logins(created, logins_out or out)
+
+
+def _queue_schema(app, out) -> None:
+    """The diagnosis queue's tables (procrastinate's own schema), created once."""
+    import procrastinate
+
+    from fieldapp import taskqueue
+
+    papp = taskqueue.build(app, procrastinate.SyncPsycopgConnector(
+        conninfo=taskqueue.conninfo(app.config["SQLALCHEMY_DATABASE_URI"]))).open()
+    try:
+        made = taskqueue.apply_schema(papp)
+    finally:
+        papp.close()
+    print("diagnosis queue " + ("created" if made else "ready"), file=out)
+
+
+def diagnosis_worker() -> int:
+    """Work the shared diagnosis queue until stopped (FIELDAPP_DIAGNOSIS=queue)."""
+    from fieldapp import taskqueue
+
+    app = create_app()
+    if app.config.get("DIAGNOSIS_MODE") != "queue":
+        print("diagnosis-worker needs FIELDAPP_DIAGNOSIS=queue and a PostgreSQL DATABASE_URL",
+              file=sys.stderr)
+        return 2
+    taskqueue.run_worker(app)
+    return 0
 
 
 def print_logins(created: list, out) -> None:
@@ -151,6 +181,8 @@ def main(argv=None) -> int:
     run = sub.add_parser("run", help="setup, then serve; the logins are printed last")
     run.add_argument("--host", default="127.0.0.1")
     run.add_argument("--port", type=int, default=5000)
+    sub.add_parser("diagnosis-worker",
+                   help="diagnose circuits from the shared queue (FIELDAPP_DIAGNOSIS=queue)")
     save = sub.add_parser("backup", help="write the whole database to FILE as JSON")
     save.add_argument("file")
     save.add_argument("--with-passwords", action="store_true",
@@ -164,6 +196,8 @@ def main(argv=None) -> int:
     if args.command == "run":
         serve(args.host, args.port)
         return 0
+    if args.command == "diagnosis-worker":
+        return diagnosis_worker()
     if args.command == "backup":
         return backup_command(args.file, args.with_passwords)
     if args.command == "restore":

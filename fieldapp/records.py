@@ -4,8 +4,10 @@ from __future__ import annotations
 
 import logging
 
+from flask import current_app
+
+from fieldapp import background, diagnoses
 from fieldapp.changes import live_outlets
-from fieldapp.diagnoses import diagnosis_for
 from fieldapp.models import Circuit, Job
 from ringmath import FORMAT
 
@@ -112,10 +114,33 @@ def diagnose_circuit(circuit: Circuit) -> tuple[dict | None, str | None]:
     """
     record = circuit_record(circuit, with_job=False)  # the job block plays no part
     try:
-        return diagnosis_for(record), None
+        return diagnoses.diagnosis_for(record), None
     except ValueError as error:
         log.info("diagnosis of circuit %s refused: %s", circuit.id, error)
         return None, f"The record cannot be diagnosed yet: {error}"
     except Exception:  # one bad circuit must never take a page or the job list down
         log.exception("diagnosis of circuit %s failed", circuit.id)
         return None, "The diagnosis failed for this circuit; the readings are kept."
+
+
+def record_hash(circuit: Circuit) -> str:
+    """The key the circuit's current record is stored under."""
+    return diagnoses.record_key(circuit_record(circuit, with_job=False))[1]
+
+
+def diagnosis_or_instant(circuit: Circuit, *, saved: bool = True) -> tuple[dict | None, bool]:
+    """What a save answers with: (full diagnosis, False) when it is stored already or the app
+    diagnoses inline; else (the instant checks, True) with the circuit queued for the
+    background thread, so the save does not wait for the fit. ``saved=False`` (a poll) queues
+    the circuit only if it is not waiting already."""
+    queue = background.queue(current_app)
+    if queue is None:
+        return diagnose_circuit(circuit)[0], False
+    record = circuit_record(circuit, with_job=False)
+    done = diagnoses.stored(record)
+    if done is not None:
+        return done, False
+    if not saved and queue.failed.get(circuit.id) == diagnoses.record_key(record)[1]:
+        return None, False  # it cannot be diagnosed: stop the page asking
+    (queue.submit if saved else queue.ensure)(circuit.id)
+    return diagnoses.instant(record), True

@@ -146,6 +146,12 @@ def _place(rng, code: str, ring: list, spurs: list, spec: dict, choices: dict):
         b = a + span
         spec["bridge"] = (a, b, float(rng.uniform(0.02, 0.15)))
         outlets = tuple(p.id for p in order if a < p.pos < b)
+    elif code == "open_conductor" and choices.get("at") == "terminal":
+        conductor = conductor or str(rng.choice(["line", "neutral", "cpc"]))
+        pool = [p for p in order if p.kind != "junction_box"]
+        victim = pool[int(rng.integers(0, len(pool)))]
+        spec["unwired"] = (victim.id, _BY_NAME[conductor])
+        outlets = (victim.id,)
     elif code == "open_conductor":
         conductor = conductor or str(rng.choice(["line", "neutral", "cpc"]))
         k = int(rng.integers(0, n + 1))
@@ -193,7 +199,8 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
     """One simulated ring test as a ``ringtest/1`` record and the truth behind it.
 
     fault: None (sound) or one of FAULT_CODES; ``choices`` may fix its ``conductor``
-    ("line"/"neutral"/"cpc"), ``step`` ("ln"/"le") or ``swap`` ("ln"/"le"). also: a second,
+    ("line"/"neutral"/"cpc"), ``step`` ("ln"/"le"), ``swap`` ("ln"/"le") or ``at``
+    ("terminal": an open conductor is one outlet's core off its terminal). also: a second,
     different fault built into the same ring. nuisance: the site's errors (None: a clean
     test). ideal_meter: readings shown exactly (no gain, digit noise or rounding), for
     worked checks; the random draws are the same.
@@ -236,9 +243,8 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
             true = true_readings(wiring, keys)
         site = true_readings(wiring, keys, warm=n.warm, contacts=contacts) \
             if (n.warm or contacts) else true
-        worn = {oid: (site[keys.index(("ln", "ln", oid))] - true[keys.index(("ln", "ln", oid))],
-                      site[keys.index(("le", "le", oid))] - true[keys.index(("le", "le", oid))])
-                for oid in contacts}
+        # the contacts are in series with the probes: each reading gains its two pins' ohms
+        worn = {oid: (c_l + c_n, c_l + c_e) for oid, (c_l, c_n, c_e) in contacts.items()}
     else:
         site, noise = true, np.zeros(len(keys))
     wired = edges(wiring)

@@ -63,7 +63,9 @@ class Wiring:
     resistance) joins positions a and b in every conductor; ``open`` (conductor, position);
     ``joint`` (conductor, outlet id, ohms) just after that outlet's terminal; ``swap``
     (outlet id, "ln" | "le") swaps L with N or with the cpc at that outlet; ``wrong`` ("ln" |
-    "le") crosses the ends at the board the wrong way for that step."""
+    "le") crosses the ends at the board the wrong way for that step; ``unwired`` (outlet id,
+    conductor) leaves that conductor off the outlet's terminal (the ring's cores still joined
+    in it), so that pin reaches nothing."""
 
     ring: tuple[Point, ...]
     spurs: tuple[Point, ...]
@@ -75,6 +77,7 @@ class Wiring:
     swap: tuple[str, str] | None = None
     wrong: str | None = None
     conduit: Conduit | None = None
+    unwired: tuple[str, str] | None = None
 
     def cable_ohm(self) -> tuple[float, float, float]:
         """End-to-end resistance of each conductor's ring cable alone (no faults), ohms."""
@@ -193,7 +196,8 @@ def reading_ohm(w: Wiring, step: str, outlet: str | None = None, *, warm: float 
     if w.swap and w.swap[0] == outlet:
         pins = {"L": "N", "N": "L", "E": "E"} if w.swap[1] == "ln" else \
             {"L": "E", "N": "N", "E": "L"}
-    a, b = f"{pins['L']}:{outlet}", f"{pins[other]}:{outlet}"
+    a, b = (f"{c}:{outlet}" if not (w.unwired and w.unwired == (outlet, c)) else f"x{i}:{outlet}"
+            for i, c in enumerate((pins["L"], pins[other])))
     net.node(a)
     net.node(b)
     if contact_ohm is not None:

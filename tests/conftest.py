@@ -62,7 +62,7 @@ def make_app(template_db, tmp_path, monkeypatch):
         path = tmp_path / f"app{len(apps)}.sqlite"
         shutil.copy(template_db, path)
         settings = {"TESTING": True, "SECRET_KEY": "test-secret", "WTF_CSRF_ENABLED": False,
-                    "INSTANCE_PATH": str(tmp_path / "instance"),
+                    "INSTANCE_PATH": str(tmp_path / "instance"), "DIAGNOSIS_MODE": "inline",
                     "SQLALCHEMY_DATABASE_URI": f"sqlite:///{path}"}
         settings.update(config)
         app = create_app(settings)

@@ -76,6 +76,17 @@ class ReadingOut(Schema):
     next_anchor = fields.String(allow_none=True)
     message = fields.String()
     html = fields.Dict(keys=fields.String(), values=fields.String())
+    #: True when the full diagnosis of the new record is still being computed: poll the URL
+    diagnosis_pending = fields.Boolean()
+    diagnosis_url = fields.String(allow_none=True)
+
+
+class DiagnosisOut(Schema):
+    """The leading diagnosis once it is ready (202 with ``pending`` while it is not)."""
+
+    pending = fields.Boolean()
+    leading = fields.Nested(Leading, allow_none=True)
+    html = fields.Dict(keys=fields.String(), values=fields.String())
 
 
 class CircuitOut(Schema):

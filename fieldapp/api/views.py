@@ -9,13 +9,13 @@ from __future__ import annotations
 
 from functools import wraps
 
-from flask import jsonify, render_template, request
+from flask import jsonify, render_template, request, url_for
 from flask_login import current_user
 from marshmallow import ValidationError
 
-from fieldapp import changes, labels, readings
+from fieldapp import changes, labels, readings, records
 from fieldapp.api import bp
-from fieldapp.api.schemas import CircuitOut, ReadingIn, ReadingOut
+from fieldapp.api.schemas import CircuitOut, DiagnosisOut, ReadingIn, ReadingOut
 from fieldapp.auth.roles import TESTING_ROLES
 from fieldapp.extensions import db
 from fieldapp.live.api import post_live_reading
@@ -91,11 +91,20 @@ def post_reading(circuit_id: int):
     return jsonify(ReadingOut().dump(_reading_reply(circuit, data, result))), 200
 
 
+def _leading_html(circuit: Circuit, diagnosis: dict | None, pending: bool) -> str:
+    if pending:
+        return render_template("ringtest/_updating.html",
+                               poll=url_for("api.circuit_diagnosis", circuit_id=circuit.id))
+    return render_template("ringtest/_leading.html", leading=answer.leading(diagnosis),
+                           names=labels.outlet_names(diagnosis))
+
+
 def _reading_reply(circuit: Circuit, data: dict, result: changes.ReadingWrite) -> dict:
-    diagnosis, _ = diagnose_circuit(circuit)
+    # the reading's own check now; the full diagnosis follows (fieldapp/background.py)
+    diagnosis, pending = records.diagnosis_or_instant(circuit)
     key = data["outlet"] if data["step"] in changes.OUTLET_READINGS else None
     feedback = fb.feedback(diagnosis, data["step"], key)
-    leading = answer.leading(diagnosis)
+    leading = None if pending else answer.leading(diagnosis)
     next_anchor = readings.next_anchor(circuit, readings.step_of(data["step"]))
     return {
         "stored": not result.duplicate,
@@ -112,10 +121,28 @@ def _reading_reply(circuit: Circuit, data: dict, result: changes.ReadingWrite) -
         "html": {
             "feedback": render_template("ringtest/_feedback.html", fbk=feedback,
                                         value=result.new),
-            "leading": render_template("ringtest/_leading.html", leading=leading,
-                                       names=labels.outlet_names(diagnosis)),
+            "leading": _leading_html(circuit, diagnosis, pending),
         },
+        "diagnosis_pending": pending,
+        "diagnosis_url": (url_for("api.circuit_diagnosis", circuit_id=circuit.id)
+                          if pending else None),
     }
+
+
+@bp.get("/circuits/<int:circuit_id>/diagnosis")
+@api_login()
+def circuit_diagnosis(circuit_id: int):
+    """The circuit's leading diagnosis for its current readings: 200 when it is ready, 202
+    while the background thread is still computing it (poll again)."""
+    circuit, missing = _circuit(circuit_id)
+    if missing:
+        return missing
+    diagnosis, pending = records.diagnosis_or_instant(circuit, saved=False)
+    if pending:
+        return jsonify(DiagnosisOut().dump({"pending": True, "leading": None, "html": {}})), 202
+    return jsonify(DiagnosisOut().dump({
+        "pending": False, "leading": answer.leading(diagnosis),
+        "html": {"leading": _leading_html(circuit, diagnosis, False)}}))
 
 
 @bp.get("/circuits/<int:circuit_id>")

@@ -52,9 +52,12 @@ def may_assign_tester(user, job) -> bool:
 
 
 def may_submit(user, job) -> bool:
-    """Who may submit a job for review: its tester, a supervisor, and for an apprentice's job
-    (the apprentice is its tester) also the tester the apprentice works under."""
-    if user.role in REVIEW_ROLES or job.tester_id == user.id:
+    """Who may submit a job for review: its tester, and for an apprentice's job (the
+    apprentice is its tester) also the tester the apprentice works under. Never a supervisor:
+    the person who reviews a job does not also put it forward (they reassign the tester)."""
+    if user.role in REVIEW_ROLES:
+        return False
+    if job.tester_id == user.id:
         return True
     if job.tester_id is None:
         return job.created_by == user.id

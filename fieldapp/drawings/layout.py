@@ -24,10 +24,14 @@ def _points_in_order(diagnosis: dict) -> tuple[list[dict], list[dict]]:
     return ordered, spurs
 
 
-def _number_map(ring: list[dict], spurs: list[dict]) -> dict[str, str]:
+def _number_map(ring: list[dict], spurs: list[dict],
+                names: dict | None = None) -> dict[str, str]:
     """The short name each point carries in every drawing: its id, the name every screen and
-    table uses for it (``fieldapp.labels``)."""
-    return {str(p.get("id")): str(p.get("id")) for p in ring + spurs}
+    table uses for it (``fieldapp.labels``), unless ``names`` (by id) or the point's own
+    ``name`` gives another."""
+    names = names or {}
+    return {str(p.get("id")): str(names.get(str(p.get("id")), p.get("name") or p.get("id")))
+            for p in ring + spurs}
 
 
 def point_names(diagnosis: dict) -> dict[str, str]:

@@ -209,14 +209,14 @@ _LEGEND = (
 )
 
 
-def readings_plot(diagnosis: dict) -> Markup:
+def readings_plot(diagnosis: dict, *, names: dict | None = None) -> Markup:
     """Step 2 (L–N) and step 3 (L–CPC) readings outlet by outlet, in ring order then spurs,
     against the expected band. In range: a filled dot. Out of range: a triangle pointing the
     way it is out, with the word "high" or "low". OL: a triangle on the top edge with "OL".
     Not taken: a dash on the axis. Readings above the scale are pinned to the top edge.
     """
     ring, spurs = _points_in_order(diagnosis)
-    numbers = _number_map(ring, spurs)
+    numbers = _number_map(ring, spurs, names)
     body = []
     top = 6.0
     for step in ("ln", "le"):

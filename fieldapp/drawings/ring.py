@@ -167,16 +167,18 @@ def _fault_marks(fault: dict, ring_xy) -> tuple[list[str], list[str]]:
     return [], out
 
 
-def ring_picture(diagnosis: dict, *, key: bool = True) -> Markup:
+def ring_picture(diagnosis: dict, *, key: bool = True, names: dict | None = None) -> Markup:
     """The ring as inferred from the readings: board at the top, outlets round the loop from
     end 1 (left) to end 2 (right), spurs branching inward from their parent, FCUs as squares,
     points over their Zs limit with a warning triangle, and the first fault finding drawn on
     it (a chord across a bridged section, a cross at a break or joint, dashed halos round the
     outlets it names). A key underneath gives every point's name and label in full and the fault in
     words; ``key=False`` leaves both out, for a page that lists the points and findings itself.
+    ``names`` (id -> short name) replaces the ids inside the symbols, for a sheet that numbers
+    its rows.
     """
     ring, spurs = _points_in_order(diagnosis)
-    numbers = _number_map(ring, spurs)
+    numbers = _number_map(ring, spurs, names)
     positions = ring_positions(diagnosis)
     fault = _first_fault(diagnosis)
     suspects = {str(o) for o in (fault.get("outlets") or [])} if fault else set()

@@ -13,23 +13,18 @@ from wtforms import (
 )
 from wtforms.validators import DataRequired, Length, NumberRange, Optional
 
+from fieldapp.choices import (  # noqa: F401  (one list for the form and the import)
+    BREAKER_STANDARDS,
+    CURVES,
+    OCPD_STANDARDS,
+    RATINGS_A,
+    RCD_MA,
+    RCD_TYPES,
+)
 from fieldapp.live.forms import ScheduleFields, schedule_data
 from fieldapp.web import options
 from ringmath.record import EARTHING_SYSTEMS, ZE_SOURCES
 
-OCPD_STANDARDS = (
-    ("BS EN 60898", "BS EN 60898 circuit-breaker (MCB)"),
-    ("BS EN 61009", "BS EN 61009 RCBO"),
-    ("BS 88-3", "BS 88-3 cartridge fuse"),
-    ("BS 3036", "BS 3036 rewirable fuse"),
-    ("BS 1362", "BS 1362 plug-top/FCU fuse"),
-)
-BREAKER_STANDARDS = ("BS EN 60898", "BS EN 61009")
-CURVES = (("", "none (fuse)"), ("B", "B"), ("C", "C"), ("D", "D"))
-RATINGS_A = (3, 5, 6, 10, 13, 15, 16, 20, 25, 30, 32, 40, 45, 50, 63)
-RCD_MA = (("", "no RCD"), ("10", "10 mA"), ("30", "30 mA"), ("100", "100 mA"),
-          ("300", "300 mA"))
-RCD_TYPES = (("", "—"), ("AC", "AC"), ("A", "A"), ("F", "F"), ("B", "B"))
 LIVE_CSA = (("1.5", "1.5 mm²"), ("2.5", "2.5 mm²"), ("4", "4 mm²"), ("6", "6 mm²"))
 CPC_CSA = (("1", "1.0 mm²"), ("1.5", "1.5 mm²"), ("2.5", "2.5 mm²"), ("4", "4 mm²"),
            ("6", "6 mm²"))

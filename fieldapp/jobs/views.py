@@ -144,11 +144,11 @@ def _tester_refused(form: JobForm, job: Job) -> bool:
 
 
 @bp.post("/<int:job_id>/submit")
-@role_required(*TESTING_ROLES, *REVIEW_ROLES)
+@role_required(*TESTING_ROLES)
 def submit(job_id: int):
     job = get_or_404(Job, job_id)
     if not may_submit(current_user, job):
-        abort(403)  # the job's tester (for an apprentice: also their tester) or a supervisor
+        abort(403)  # the job's tester (for an apprentice: also their tester)
     locked = _refuse_locked(job)
     if locked:
         return locked

@@ -8,12 +8,12 @@ from sqlalchemy import case, or_, select
 
 from fieldapp import changes
 from fieldapp.auth.roles import REVIEW_ROLES, role_required
+from fieldapp.diary import FIELD_WORDS, job_diary
 from fieldapp.extensions import db
 from fieldapp.labels import outlet_name
 from fieldapp.models import Circuit, Job, Outlet, utcnow
 from fieldapp.records import circuit_reference
 from fieldapp.review import bp
-from fieldapp.review.diary import FIELD_WORDS, job_diary
 from fieldapp.review.flags import job_flags
 from fieldapp.review.forms import (
     REASON_NEEDED,

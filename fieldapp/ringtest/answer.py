@@ -22,13 +22,14 @@ from fieldapp.labels import SEVERITY_WORDS, ohm, outlet_names, verdict_word
 #: Two fault explanations whose confidences are within this factor "fit about as well".
 SIMILAR_LIKELIHOOD = 2.0
 #: Danger rank of each fault code (higher first), common practice of the trade: a missing
-#: earth path or reversed polarity can make metalwork live; a broken ring conductor leaves a
+#: earth path leaves no fault protection at all; reversed polarity leaves parts live when
+#: switched off; a broken ring conductor leaves a
 #: long radial overloaded; a bridge or a poor joint can overheat; an unrecorded spur breaks
 #: the design; crossed ends at the board are a set-up slip of the test itself.
 DANGER = {
     "zs_over_limit": 9,
+    "open_conductor:cpc": 9,
     "reversed_polarity": 8,
-    "open_conductor:cpc": 8,
     "open_conductor": 6,
     "interconnection": 5,
     "high_resistance_joint": 4,
@@ -146,3 +147,11 @@ def leading(diagnosis: dict | None) -> dict | None:
         "severity_words": SEVERITY_WORDS.get(top["severity"], "") if top else "",
         "where": [o for o in (top or {}).get("outlets") or [] if f"({o})" not in message],
     }
+
+
+def as_shown(diagnosis: dict) -> dict:
+    """The diagnosis as the page shows it: findings in the order above and the summary of the
+    finding that leads, so the ring picture marks the same fault the page names first."""
+    lead = leading(diagnosis) or {}
+    return {**diagnosis, "findings": order_findings(diagnosis.get("findings") or []),
+            "summary": lead.get("summary") or diagnosis.get("summary")}

@@ -118,6 +118,7 @@ def render_step(circuit: Circuit, step: str, *, bad: ReadingForm | None = None,
 def render_results(circuit: Circuit):
     diagnosis, diagnosis_error = diagnose_circuit(circuit)
     state = answer.zs_state(diagnosis) if diagnosis else None
+    shown = answer.as_shown(diagnosis) if diagnosis else None
     return render_template(
         "ringtest/results.html", circuit=circuit, job=circuit.job, diagnosis=diagnosis,
         diagnosis_error=diagnosis_error, leading=answer.leading(diagnosis),
@@ -125,7 +126,7 @@ def render_results(circuit: Circuit):
         info=STEP_INFO["results"], cautions=labels.CAUTIONS,
         findings=answer.order_findings((diagnosis or {}).get("findings") or []),
         zs=state, tiles=answer.tiles(diagnosis, state) if diagnosis else [],
-        ring_svg=drawings.ring_picture(diagnosis) if diagnosis else Markup(""),
-        plot_svg=drawings.readings_plot(diagnosis) if diagnosis else Markup(""),
+        ring_svg=drawings.ring_picture(shown) if shown else Markup(""),
+        plot_svg=drawings.readings_plot(shown) if shown else Markup(""),
         safe=changes.safety_confirmed(circuit), severity_words=labels.SEVERITY_WORDS,
     )

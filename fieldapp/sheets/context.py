@@ -16,7 +16,8 @@ import re
 
 from markupsafe import Markup
 
-from fieldapp.drawings import KIND_WORDS, point_numbers, ring_picture
+from fieldapp.drawings import KIND_WORDS, point_names, ring_picture
+from fieldapp.labels import outlet_name
 from fieldapp.live.feedback import live_summary
 from ringmath.messages import CAUTIONS
 
@@ -151,13 +152,13 @@ def _status_word(status: dict | None) -> str:
     return READING_STATUS_WORDS.get(status.get("status"), "")
 
 
-def _numbers(rec: dict, diagnosis: dict) -> dict[str, int]:
-    """Each outlet's number: the one it carries in the ring picture when there is a diagnosis,
-    else its place in visiting order; an outlet the diagnosis does not know comes after."""
-    numbers = point_numbers(diagnosis) if diagnosis else {}
+def _names(rec: dict, diagnosis: dict) -> dict[str, str]:
+    """Each outlet's short name: the one it carries in the ring picture when there is a
+    diagnosis (fieldapp.drawings.point_names), else its id, as every screen names it."""
+    names = point_names(diagnosis) if diagnosis else {}
     for outlet in rec.get("outlets") or []:
-        numbers.setdefault(str(outlet["id"]), max(numbers.values(), default=0) + 1)
-    return numbers
+        names.setdefault(str(outlet["id"]), str(outlet["id"]))
+    return names
 
 
 def _named_in(diagnosis: dict) -> dict[str, str]:
@@ -176,18 +177,18 @@ def _outlet_rows(rec: dict, diagnosis: dict) -> list[dict]:
     named = _named_in(diagnosis)
     checks = _reading_status(diagnosis)
     labels = {o["id"]: o.get("label") or o["id"] for o in rec.get("outlets") or []}
-    numbers = _numbers(rec, diagnosis)
+    names = _names(rec, diagnosis)
     rows = []
     for outlet in rec.get("outlets") or []:
         point = points.get(outlet["id"], {})
         fed = outlet.get("spur_from")
         rows.append({
-            "n": numbers[str(outlet["id"])],
+            "n": names[str(outlet["id"])],
             "id": outlet["id"],
             "label": outlet.get("label") or "",
             "kind": KIND_WORDS.get(outlet.get("kind"), outlet.get("kind") or ""),
             "fuse": f"{quantity(outlet['fuse_a'])} A" if outlet.get("fuse_a") else "",
-            "fed": f"spur from No. {numbers.get(str(fed), '?')} {labels.get(fed, fed)}" if fed
+            "fed": f"spur from {outlet_name(names.get(str(fed), fed), labels.get(fed))}" if fed
                    else "ring",
             "ln": recorded(outlet.get("ln")),
             "ln_check": _status_word(checks.get((outlet["id"], "ln"))),
@@ -203,12 +204,11 @@ def _outlet_rows(rec: dict, diagnosis: dict) -> list[dict]:
     return rows
 
 
-def _findings(diagnosis: dict, numbers: dict[str, int]) -> list[dict]:
-    """The findings in words; the outlets they name by number (as in the schedule and the ring
-    picture) and id (as in the messages)."""
+def _findings(diagnosis: dict, names: dict[str, str], labels: dict) -> list[dict]:
+    """The findings in words; the outlets they name as the schedule and the ring picture do
+    ("c · Kitchen")."""
     def outlet(oid) -> str:
-        number = numbers.get(str(oid))
-        return f"No. {number} ({oid})" if number is not None else str(oid)
+        return outlet_name(names.get(str(oid), oid), labels.get(str(oid)))
 
     return [{
         "severity": (f.get("severity") or "").upper(),
@@ -238,7 +238,7 @@ def _zs_line(summary: dict, rows: list[dict]) -> str:
     if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
         parts.append(f"highest Zs {ohm(summary['zs_ohm'])} Ω against a limit of "
                      f"{ohm(summary['zs_max_ohm'])} Ω")
-    failing = [f"No. {row['n']}" for row in rows if row["failed"]]
+    failing = [outlet_name(row["n"], row["label"]) for row in rows if row["failed"]]
     if failing:
         parts.append("over the limit or open at " + ", ".join(failing))
     if not parts:
@@ -298,9 +298,10 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
     ctx["summary_sentence"] = diagnosis.get("summary") or problem or ""
     ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict"), "")
                       if ctx["summary"]["result"] == _pass_word(True) else "")
-    ctx["findings"] = _findings(diagnosis, _numbers(rec, diagnosis))
+    ctx["findings"] = _findings(diagnosis, _names(rec, diagnosis),
+                                {str(o["id"]): o.get("label") for o in rec.get("outlets") or []})
     # one drawing per circuit: the screen's picture with its own key, or the printed one
-    # without (the schedule beside it carries the numbers, the findings are printed in full)
+    # without (the schedule beside it carries the names, the findings are printed in full)
     ctx["picture"] = Markup("")
     ctx["sketch"] = ""
     if diagnosis and drawing == "screen":

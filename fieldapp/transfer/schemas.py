@@ -21,10 +21,10 @@ import re
 from marshmallow import RAISE, Schema, ValidationError, fields, validate, validates_schema
 
 from fieldapp import limits
-from fieldapp.jobs.forms import BREAKER_STANDARDS, CURVES, OCPD_STANDARDS, RATINGS_A, RCD_MA
-from fieldapp.jobs.forms import RCD_TYPES as RCD_TYPE_CHOICES
-from fieldapp.live.values import CPC_KINDS, TAKEN_AT
+from fieldapp.choices import BREAKER_STANDARDS, CURVES, OCPD_STANDARDS, RATINGS_A, RCD_MA
+from fieldapp.choices import RCD_TYPES as RCD_TYPE_CHOICES
 from ringmath import record
+from ringmath.record import CPC_KINDS, TAKEN_AT
 
 OL = "OL"
 #: The readings of an outlet, each parsed by ringmath on its own.

@@ -62,6 +62,89 @@
     return true;
   }
 
+  // Offline the server cannot ask about a slipped decimal point, so the page asks with the
+  // band the server put on the card (data-low, data-high): the same question as the server's,
+  // asked only when the reading is out of the band and the same digits one place left or
+  // right are inside it.
+  function shifted(text, places) {
+    var value = parseFloat(text.replace(",", "."));
+    var decimals = (text.replace(",", ".").split(".")[1] || "").length + places;
+    var out = (places > 0 ? value / 10 : value * 10).toFixed(Math.max(decimals, 0));
+    return out.indexOf(".") >= 0 ? out.replace(/0+$/, "").replace(/\.$/, "") : out;
+  }
+
+  function localSlip(form, body) {
+    var card = form.closest(".reading");
+    if (!card || body.keep || body.value === "OL") { return null; }
+    var low = parseFloat(card.getAttribute("data-low"));
+    var high = parseFloat(card.getAttribute("data-high"));
+    var value = parseFloat(String(body.value).replace(",", "."));
+    if (!(value > 0) || isNaN(low) || isNaN(high) || (value >= low && value <= high)) { return null; }
+    var candidates = [shifted(String(body.value), 1), shifted(String(body.value), -1)];
+    for (var i = 0; i < candidates.length; i++) {
+      var c = parseFloat(candidates[i]);
+      if (c >= low && c <= high) {
+        return { typed: String(parseFloat(String(body.value).replace(",", "."))), suggested: candidates[i] };
+      }
+    }
+    return null;
+  }
+
+  function hidden(name, value) {
+    var input = document.createElement("input");
+    input.type = "hidden";
+    input.name = name;
+    input.value = value;
+    return input;
+  }
+
+  function showLocalSlip(form, body, slip) {
+    var card = form.closest(".reading");
+    var box = card && card.querySelector("[data-slip-box]");
+    if (!box) { return false; }
+    box.textContent = "";
+    var wrap = document.createElement("div");
+    wrap.className = "slip";
+    wrap.setAttribute("data-slip", "");
+    wrap.setAttribute("role", "alert");
+    var p = document.createElement("p");
+    var strong = document.createElement("strong");
+    strong.textContent = "Decimal point slipped?";
+    p.appendChild(strong);
+    p.appendChild(document.createTextNode(" " + slip.typed + " Ω is out of the expected range here."));
+    wrap.appendChild(p);
+    var choices = document.createElement("div");
+    choices.className = "slip-choices";
+    [[slip.suggested, "", slip.suggested + " Ω"], [slip.typed, "1", "keep " + slip.typed + " Ω"]].forEach(function (c) {
+      var f = document.createElement("form");
+      f.className = "reading-form slip-form";
+      f.method = "post";
+      f.action = form.action;
+      f.setAttribute("data-api", form.getAttribute("data-api"));
+      f.appendChild(hidden("csrf_token", csrfToken()));
+      f.appendChild(hidden("field", body.step));
+      f.appendChild(hidden("outlet", body.outlet || ""));
+      f.appendChild(hidden("client_id", body.client_id));
+      f.appendChild(hidden("device", body.device));
+      f.appendChild(hidden("value", c[0]));
+      f.appendChild(hidden("keep", c[1]));
+      var b = document.createElement("button");
+      b.type = "submit";
+      b.name = "save";
+      b.value = "1";
+      b.className = c[1] ? "button" : "button primary";
+      b.textContent = c[2];
+      f.appendChild(b);
+      choices.appendChild(f);
+      enhance(f);
+    });
+    wrap.appendChild(choices);
+    box.appendChild(wrap);
+    showError(form, "");
+    choices.querySelector("button").focus();
+    return true;
+  }
+
   function applyReply(form, reply) {
     var card = form.closest(".reading");
     if (card) {
@@ -125,13 +208,20 @@
         showError(form, first ? errors[first].join(" ") : "Not saved.");
       }
     }).catch(function () {
+      var slip = localSlip(form, body);
+      if (slip && showLocalSlip(form, body, slip)) { return; }
+      var card = form.closest(".reading");
       var offline = window.ringtestOffline;
       if (offline && typeof offline.enqueue === "function") {
         offline.enqueue(form.getAttribute("data-api"), body);
         showError(form, "");
-        var feedback = form.closest(".reading").querySelector("[data-feedback]");
+        var feedback = card && card.querySelector("[data-feedback]");
         if (feedback) { feedback.textContent = "Kept on this phone; it will be sent when the signal is back."; }
-        form.querySelector('input[name="client_id"]').value = newId();
+        (card || form).querySelectorAll('input[name="client_id"]').forEach(function (input) {
+          input.value = newId();
+        });
+        var slipBox = card && card.querySelector("[data-slip-box]");
+        if (slipBox) { slipBox.textContent = ""; }
       } else {
         if (ol) { form.querySelector('input[name="value"]').value = "OL"; }
         form.submit();
@@ -159,6 +249,21 @@
       send(form, ol);
     });
   }
+
+  // For the offline script: the same decimal-point question for a reading it queues itself.
+  window.ringtestSlip = {
+    check: function (form, value) {
+      return localSlip(form, { value: String(value), keep: false });
+    },
+    ask: function (form, value, slip) {
+      var get = function (name) {
+        var input = form.querySelector('input[name="' + name + '"]');
+        return input ? input.value : "";
+      };
+      return showLocalSlip(form, { step: get("field"), outlet: get("outlet"),
+        client_id: get("client_id"), device: deviceLabel(), value: String(value) }, slip);
+    }
+  };
 
   document.addEventListener("DOMContentLoaded", function () {
     document.querySelectorAll("form").forEach(enhance);

@@ -44,8 +44,10 @@ def _filled_app(make_app, login):
     doc["job"]["reference"] = "HM-0418"
     second = tester.post("/api/jobs/import", json=doc).get_json()
     for job in (first, second):
-        assert tester.post(f"/jobs/{job['job_id']}/submit").status_code == 302
-    supervisor.post(f"/review/jobs/{first['job_id']}/approve", data={})
+        assert tester.post(f"/jobs/{job['job_id']}/submit", data={
+            "reason": "safety to be confirmed on site"}).status_code == 302
+    supervisor.post(f"/review/jobs/{first['job_id']}/approve",
+                    data={"reason": "safety confirmed by phone with the tester"})
     supervisor.post(f"/review/jobs/{second['job_id']}/return",
                     data={"comment": "Kitchen reading to be repeated"})
     supervisor.post("/users/new", data={"username": "newbie", "name": "Nia New",

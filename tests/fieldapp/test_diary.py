@@ -11,7 +11,7 @@ from types import SimpleNamespace
 import pytest
 import sqlalchemy as sa
 
-from fieldapp.review.diary import change_words, device_words, diary_rows, local
+from fieldapp.diary import change_words, device_words, diary_rows, local
 
 ANDROID = ("Mozilla/5.0 (Linux; Android 14; Pixel 8) AppleWebKit/537.36 (KHTML, like Gecko) "
            "Chrome/131.0.0.0 Mobile Safari/537.36")
@@ -130,3 +130,15 @@ def test_an_offline_reading_shows_when_it_was_taken(app, make_circuit, tester, s
         assert "Mozilla" not in whole and "AppleWebKit" not in whole
         assert not re.search(r"\b(in_progress|safety_\w+|job_id|circuit_id|_ohm|_mm2)\b",
                              whole), whole
+
+
+@pytest.mark.parametrize("field,old,new,expected", [
+    ("zs_measured", None, "0.74", ("nothing", "0.74", "Ω")),
+    ("le_terminals", "0.36", "0.33", ("0.36", "0.33", "Ω")),
+    ("taken_at", None, "front", ("nothing", "the socket front (plug-in lead)", "")),
+    ("ir_ln_mohm", None, ">999", ("nothing", "> 999 MΩ", "")),
+    ("rcd_trip_ms", None, "24.0", ("nothing", "24", "ms")),
+    ("cpc_kind", "cable_core", "armour", ("a core of the cable", "the cable armour", "")),
+])
+def test_the_live_test_values_in_words(field, old, new, expected):
+    assert change_words(field, old, new, {}) == expected

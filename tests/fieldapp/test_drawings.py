@@ -707,3 +707,15 @@ def test_a_crowded_plot_keeps_its_names_apart_and_shortens_its_words():
                        if abs(float(t.get("y")) - bottom - 14) < 0.5)
         assert 8 <= len(ticks) <= 12
         assert min(b - a for a, b in zip(ticks, ticks[1:], strict=False)) >= 18
+
+
+def test_a_sheet_may_number_the_symbols_itself():
+    diag = with_spurs()
+    numbered = {p["id"]: str(i) for i, p in enumerate(diag["points"], start=1)}
+    for draw in (drawings.ring_picture, drawings.readings_plot):
+        shown = texts(parse(draw(diag, names=numbered)))
+        assert all(n in shown for n in numbered.values())
+    assert drawings.point_names(diag) == {p["id"]: p["id"] for p in diag["points"]}
+    named = {**diag, "points": [{**p, "name": numbered[p["id"]]} for p in diag["points"]]}
+    shown = texts(parse(drawings.ring_picture(named, key=False)))
+    assert all(n in shown for n in numbered.values())

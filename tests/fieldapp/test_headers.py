@@ -81,8 +81,13 @@ INLINE = [
     (re.compile(r"\son[a-z]+\s*=\s*[\"']", re.I), "on* handler"),
     (re.compile(r"javascript:", re.I), "javascript: URL"),
 ]
+#: The job sheet is printed to PDF on the server, never served: its templates and the ones it
+#: includes may style inline.
+PRINTED = {"sheets/" + p.name for p in (ROOT / "templates" / "sheets").glob("*.html")}
+PRINTED |= {name for p in (ROOT / "templates" / "sheets").glob("*.html")
+            for name in re.findall(r'{%\s*include\s+"([^"]+)"', p.read_text())}
 SERVED = [p for p in sorted((ROOT / "templates").rglob("*.html"))
-          if p.relative_to(ROOT / "templates").parts[0] != "sheets"]  # the sheet is a PDF
+          if p.relative_to(ROOT / "templates").as_posix() not in PRINTED]
 SERVED += sorted((ROOT / "static").rglob("*.html")) + sorted((ROOT / "static").rglob("*.svg"))
 
 

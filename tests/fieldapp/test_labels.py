@@ -143,3 +143,17 @@ def test_ordering_keeps_every_finding_once():
     for a, b in zip(ordered, ordered[1:], strict=False):
         # never a less likely and less dangerous explanation above a more likely one
         assert not (a["confidence"] * answer.SIMILAR_LIKELIHOOD < b["confidence"])
+
+
+def test_a_missing_earth_is_named_before_swapped_terminals_that_fit_as_well():
+    # step 3 OL at one outlet fits both "line and neutral swapped" and "cpc not connected"
+    # about equally; the missing earth leaves no fault protection, so it leads
+    diag = diagnose(record([socket("a", "Kitchen"), socket("b", "Hall", le="OL"),
+                            socket("c", "Lounge")]))
+    tied = [f for f in diag["findings"] if f["severity"] == "fault" and "b" in f["outlets"]]
+    assert {(f["code"], f.get("conductor")) for f in tied} >= {("open_conductor", "cpc")}
+    assert len(tied) >= 2
+    first = answer.order_findings(diag["findings"])[0]
+    assert (first["code"], first.get("conductor")) == ("open_conductor", "cpc")
+    shown = answer.as_shown(diag)
+    assert shown["findings"][0] is first and shown["summary"] == first["message"]

@@ -41,7 +41,7 @@ def counts(app) -> dict[str, int]:
 
 
 @pytest.mark.parametrize("circuits, outlets, error", [
-    (limits.MAX_CIRCUITS_PER_JOB + 1, 1, "circuits: at most 60 circuits in one job"),
+    (limits.MAX_CIRCUITS_PER_JOB + 1, 1, "circuits: at most 24 circuits in one job"),
     (1, limits.MAX_OUTLETS_PER_CIRCUIT + 1,
      "circuits[0].outlets: at most 60 outlets on one circuit"),
     (7, 60, "circuits: at most 400 outlets in one job, this file has 420"),

@@ -165,7 +165,9 @@ def test_taken_at_and_a_terminal_re_measure_are_kept_beside_the_front_reading(
             select(ChangeLog).where(ChangeLog.entity == "outlet").order_by(ChangeLog.id))]
     assert "taken_at" in fields and "le_terminals" in fields
     history = parse(tester.get(f"/circuits/{cid}/history")).get_text()
-    assert "le_terminals" in history and "taken_at" in history
+    # the diary's words for them (fieldapp/diary.py), never the column names
+    assert "L–CPC re-measured at the terminals" in history and "Readings taken at" in history
+    assert "le_terminals" not in history and "taken_at" not in history
     # a choice the record format does not know is refused
     bad = tester.post(f"/circuits/{cid}/live/outlets/b/taken-at", data={"taken_at": "back"})
     assert bad.status_code == 400

@@ -47,7 +47,7 @@ def _status(app, job_id):
 # (job's tester, who acts, may submit)
 SUBMIT = [
     ("test", "test", True), ("test", "test2", False), ("test", "appr", False),
-    ("test", "super", True),
+    ("test", "super", False),  # a supervisor reviews; reassigns the tester, never submits
     ("appr", "appr", True), ("appr", "test", True),  # an apprentice's tester
     ("appr", "test2", False),
 ]
@@ -56,7 +56,8 @@ SUBMIT = [
 @pytest.mark.parametrize("owner, who, allowed", SUBMIT)
 def test_who_may_submit(app, people, logged_in, make_circuit, owner, who, allowed):
     job_id = _job(app, make_circuit, people[owner])
-    response = logged_in(who).post(f"/jobs/{job_id}/submit")
+    response = logged_in(who).post(f"/jobs/{job_id}/submit",
+                                   data={"reason": "ownership check: readings to follow"})
     assert response.status_code == (302 if allowed else 403)
     assert _status(app, job_id)[0] == ("submitted" if allowed else "in_progress")
 

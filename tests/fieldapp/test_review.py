@@ -384,7 +384,7 @@ def test_flags_count_the_sign_off_problems_by_kind():
     groups = [CircuitProblems("DB1/1", (
         Problem("verdict", "Assessment: Investigate, not Satisfactory."),
         Problem("finding", "Fault: a bridge"), Problem("finding", "Check: Ze declared"),
-        Problem("zs_fail", "Zs fails at No. 2"), Problem("zs_unproved", "x", count=3))),
+        Problem("zs_fail", "Zs fails at b · Hall"), Problem("zs_unproved", "x", count=3))),
         CircuitProblems("DB1/2", (Problem("steps_missing", "Step 2", count=4),
                                   Problem("steps_missing", "Step 1", count=1),
                                   Problem("safety", "not ticked")))]

@@ -13,6 +13,7 @@ import pytest
 from bs4 import BeautifulSoup
 from weasyprint.formatting_structure import boxes
 
+from fieldapp.labels import outlet_name
 from fieldapp.sheets.context import recorded, sheet_context
 from fieldapp.sheets.pdf import sheet_document, sheet_html
 from fieldapp.transfer.schemas import dump_document, load_document
@@ -163,8 +164,8 @@ def test_schedule_rows_are_never_split_and_every_page_has_its_header(printed):
         assert len(schedule_pages) >= 2
 
 
-def drawn_numbers(picture) -> dict[str, set[str]]:
-    """Per label, the numbers its symbols carry in the ring picture (ring and key)."""
+def drawn_names(picture) -> dict[str, set[str]]:
+    """Per label, the names its symbols carry in the ring picture (ring and key)."""
     drawn: dict[str, set[str]] = {}
     for group in BeautifulSoup(str(picture), "html.parser").find_all("g"):
         title, text = group.find("title"), group.find("text")
@@ -180,29 +181,32 @@ def printed_svg(uri: str) -> str:
     return base64.b64decode(uri[len(prefix):]).decode()
 
 
-def test_outlets_carry_the_ring_pictures_numbers(printed):
+def test_outlets_carry_the_ring_pictures_names(printed):
     doc, diagnoses, _, pages, _ = printed
     screen = sheet_context(doc, diagnoses, PEOPLE)
     paper = sheet_context(doc, diagnoses, PEOPLE, drawing="print")
     flat = " ".join(" ".join(pages).split())
     for c, p, diagnosis in zip(screen["circuits"], paper["circuits"], diagnoses, strict=True):
-        numbers = {o["id"]: o["n"] for o in c["outlets"]}
-        assert sorted(numbers.values()) == list(range(1, len(numbers) + 1))
-        # the review page's picture names each outlet by the schedule's number
-        drawn = drawn_numbers(c["picture"])
+        rec = doc["circuits"][c["index"] - 1]
+        # one name per outlet: the id it has in the record, as every screen names it
+        names = {o["id"]: o["n"] for o in c["outlets"]}
+        assert names == {o["id"]: o["id"] for o in rec["outlets"]}
+        drawn = drawn_names(c["picture"])
         for o in c["outlets"]:
-            assert drawn[o["label"] or o["id"]] == {str(o["n"])}, o["id"]
-        # the printed sketch carries the same numbers, without the screen's tooltips
+            assert drawn[o["label"] or o["id"]] == {o["n"]}, o["id"]
+        # the printed sketch carries the same names, without the screen's tooltips
         svg = printed_svg(p["sketch"])
         texts = {t.get_text() for t in BeautifulSoup(svg, "html.parser").find_all("text")}
-        assert {str(n) for n in numbers.values()} <= texts
+        assert set(names.values()) <= texts
         assert "<title>" not in svg and p["picture"] == "" and c["sketch"] == ""
-        for o, rec in zip(c["outlets"], doc["circuits"][c["index"] - 1]["outlets"], strict=True):
-            if rec["spur_from"]:
-                assert o["fed"].startswith(f"spur from No. {numbers[rec['spur_from']]} ")
+        labels = {o["id"]: o["label"] for o in rec["outlets"]}
+        for o, outlet in zip(c["outlets"], rec["outlets"], strict=True):
+            if outlet["spur_from"]:
+                parent = outlet["spur_from"]
+                assert o["fed"] == f"spur from {outlet_name(parent, labels[parent])}"
         for finding, words in zip(diagnosis["findings"], c["findings"], strict=True):
             for oid in finding["outlets"]:
-                assert f"No. {numbers[oid]} ({oid})" in words["outlets"]
+                assert outlet_name(oid, labels[oid]) in words["outlets"]
         assert f"{c['index']}. {c['reference']}" in flat  # the overview on page 1
 
 
@@ -307,7 +311,8 @@ def test_an_outlet_over_its_limit_fails_the_circuit_even_without_a_circuit_zs():
     assert by_id["b"]["result"] == "FAIL" and by_id["b"]["named"] == "FAULT"
     assert by_id["a"]["result"] == "not proved"
     assert part_done["summary"]["result"] == "FAIL"
-    assert part_done["zs_line"] == f"over the limit or open at No. {by_id['b']['n']}"
+    hall = outlet_name('b', by_id['b']['label'])
+    assert part_done["zs_line"] == f"over the limit or open at {hall}"
     # the safety ticks are printed as recorded: locked off was not ticked on this circuit
     assert dict(part_done["details"])["Isolated / locked off / proved dead"] == "yes / NO / yes"
 
@@ -326,3 +331,63 @@ def test_a_zs_pass_on_a_faulty_ring_says_it_covers_zs_only():
     healthy = as_job_document(DEMOS["01-healthy-ring-with-spurs.json"])
     sound = sheet_context(healthy, [diagnose(r) for r in healthy["circuits"]], PEOPLE)
     assert sound["circuits"][0]["zs_only"] == ""
+
+
+def test_the_ring_picture_stays_with_its_circuit(printed):
+    """No page holds a drawing alone: the picture sits on the page that starts its circuit,
+    beside the circuit's details."""
+    doc, _, _, _, laid_out = printed
+    pictures = 0
+    for number, page in enumerate(laid_out.pages, start=1):
+        found = list(page_boxes(page))
+        images = [b for b in found if "sketch" in classes(b)]
+        if not images:
+            continue
+        pictures += len(images)
+        headings = {id(b.element) for b in found if getattr(b, "element_tag", "") == "h2"}
+        assert len(images) == len(headings) == 1, number
+        tables = [b for b in found if isinstance(b, boxes.TableBox)]
+        assert tables, f"page {number}: the picture without the circuit's figures"
+    assert pictures == len(doc["circuits"])
+
+
+def test_signoff_instrument_and_signature_lines_are_printed():
+    doc = as_job_document(HANDMADE)
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    people = {**PEOPLE, "instrument_model": "Acme MFT-9", "instrument_serial": "SN 40417",
+              "submit_reason": "Client away; cpc repair booked.",
+              "approve_reason": "Remedial work ordered as WO-17."}
+    laid_out = sheet_document(doc, diagnoses, people)
+    first = " ".join(pypdf.PdfReader(io.BytesIO(laid_out.write_pdf())).pages[0]
+                     .extract_text().split())
+    assert "Test instrument Acme MFT-9, serial no. SN 40417" in first
+    # the problems of the open cpc circuit, and who went on despite them, and why
+    assert "DB1/5" in first and "locked off not ticked" in first
+    assert ("Submitted with these problems by Morwenna Tregear on 27 Nov 2026 16:02 UTC. "
+            "Reason given: Client away; cpc repair booked.") in first
+    assert ("Approved with these problems by Idris Calloway on 28 Nov 2026 08:30 UTC. "
+            "Reason given: Remedial work ordered as WO-17.") in first
+    # one line each for the tester and the reviewer: name, date, and room to sign
+    assert "Tester Morwenna Tregear 27 Nov 2026" in first
+    assert "Reviewer Idris Calloway 28 Nov 2026" in first
+    rows = [b for page in laid_out.pages for b in page_boxes(page)
+            if "sigline" in classes(b)]
+    assert len(rows) == 2 and all(row.height >= 10 * 72 / 25.4 - 0.5 for row in rows)
+    # nothing recorded: the sheet says so rather than leaving a blank
+    bare = sheet_context(doc, diagnoses, {})
+    assert bare["instrument"] == "not recorded"
+    assert bare["signoff"]["reasons"] == [] and [s["name"] for s in bare["signatures"]] == [
+        "", ""]
+
+
+def test_a_sound_job_prints_no_problems():
+    doc = as_job_document(DEMOS["01-healthy-ring-with-spurs.json"])
+    for rec in doc["circuits"]:
+        rec["circuit"]["safety"] = {"isolated": True, "locked_off": True, "proved_dead": True,
+                                    "confirmed_by": "Morwenna Tregear",
+                                    "confirmed_at": "2026-11-27T09:00:00"}
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    assert {d["verdict"] for d in diagnoses} == {"satisfactory"}
+    ctx = sheet_context(doc, diagnoses, PEOPLE)
+    assert ctx["signoff"]["problems"] == []
+    assert "No problems found" in sheet_html(doc, diagnoses, PEOPLE)

@@ -149,10 +149,15 @@ def test_an_apprentice_submitting_their_job_also_needs_a_reason(app, make_circui
     assert stored(app, jid)["submit_reason"] == "Asked Idris"
 
 
-def test_a_supervisor_cannot_submit(app, make_circuit, supervisor):
+def test_a_supervisor_submitting_also_needs_a_reason(app, make_circuit, supervisor):
     jid = job_of(app, make_circuit(**CASES["zs_fail"]))
-    assert supervisor.post(f"/jobs/{jid}/submit", data={"reason": "x"}).status_code == 403
+    assert supervisor.post(f"/jobs/{jid}/submit").status_code == 422
     assert stored(app, jid)["status"] == "in_progress"
+    assert supervisor.post(f"/jobs/{jid}/submit", data={"reason": "Ze to be re-measured"}
+                           ).status_code == 302
+    after = stored(app, jid)
+    assert (after["status"], after["submit_reason"]) == ("submitted", "Ze to be re-measured")
+    assert ("submit_reason", "Ze to be re-measured", "super") in after["log"]
 
 
 # ---------------------------------------------------------------- approving

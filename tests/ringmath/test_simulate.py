@@ -129,6 +129,14 @@ def test_worn_socket_contacts_add_to_those_outlets_only():
     assert [o.taken_at for o in parsed.outlets] == [o["taken_at"] for o in worn["outlets"]]
 
 
+def test_worn_contacts_on_a_warmer_day_add_only_their_own_ohms():
+    warm, _ = _sim(7, None, ideal_meter=True, nuisance=Nuisance(warm=0.03))
+    both, truth = _sim(7, None, ideal_meter=True, nuisance=Nuisance(warm=0.03, worn=2))
+    for a, b in zip(warm["outlets"], both["outlets"], strict=True):
+        extra = truth.worn_ohm.get(b["id"], (0.0, 0.0))
+        assert (b["ln"] - a["ln"], b["le"] - a["le"]) == pytest.approx(extra, abs=1e-6)
+
+
 def test_a_re_measure_at_the_terminals_reads_without_the_socket_contacts():
     clean, _ = _sim(7, None, ideal_meter=True, nuisance=Nuisance(lead_ohm=0.03))
     again, truth = _sim(7, None, ideal_meter=True,
@@ -225,6 +233,32 @@ def test_the_netlist_matches_the_closed_form_of_a_sound_ring():
             (r1 * rn + t * (1 - t) * (r1 - rn) ** 2) / (r1 + rn), abs=1e-6)
         assert reading_ohm(w, "le", p.id) == pytest.approx(_network("le", t, r1, rn, r2),
                                                            abs=1e-6)
+
+
+@pytest.mark.parametrize(("conductor", "ln_open", "le_open"), [
+    ("line", True, True), ("neutral", True, False), ("cpc", False, True)])
+def test_a_core_off_one_outlets_terminal_reads_open_there_only(conductor, ln_open, le_open):
+    # The ring's cores still meet in the terminal, so the ring and every other outlet read as
+    # sound; only that outlet's pin reaches nothing (common practice).
+    record, truth = _sim(15, "open_conductor", conductor=conductor, at="terminal")
+    (victim,) = truth.outlets
+    assert "OL" not in _e2e(record)
+    for o in record["outlets"]:
+        mine = o["id"] == victim
+        assert (o["ln"] == "OL") is (mine and ln_open)
+        assert (o["le"] == "OL") is (mine and le_open)
+    assert truth.locatable and math.isinf(truth.signal_ohm)
+    if conductor == "cpc":  # no earth at that socket in service
+        assert math.isinf(truth.service_r1r2_ohm[victim])
+
+
+def test_a_swapped_line_and_neutral_reads_like_a_cpc_off_its_terminal():
+    # Both leave step 2 normal and step 3 open at that outlet: the readings cannot tell them
+    # apart (the benchmark builds both so a diagnosis that always picks one scores half).
+    w = _hand_ring(swap=("c", "ln"))
+    v = replace(w, swap=None, unwired=("c", "E"))
+    assert reading_ohm(w, "ln", "c") == pytest.approx(reading_ohm(v, "ln", "c"), abs=1e-9)
+    assert math.isinf(reading_ohm(w, "le", "c")) and math.isinf(reading_ohm(v, "le", "c"))
 
 
 def test_two_faults_at_once_are_both_in_the_truth():

@@ -44,6 +44,22 @@ FIELD_WORDS = {
     "date": "test date", "notes": "notes", "tester_id": "tester", "created_by": "created by",
     "job_id": "job", "circuit_id": "circuit", "instrument_model": "test instrument",
     "instrument_serial": "instrument serial number",
+    "zs_measured": "measured Zs", "ln_terminals": "L–N re-measured at the terminals",
+    "le_terminals": "L–CPC re-measured at the terminals", "taken_at": "readings taken at",
+    "cpc_kind": "cpc is", "parallel_paths": "parallel earth paths expected",
+    "pfc_ka": "prospective fault current", "ir_test_v": "insulation test voltage",
+    "ir_ln_mohm": "insulation L–N", "ir_le_mohm": "insulation L–E",
+    "ir_ne_mohm": "insulation N–E", "rcd_trip_ms": "RCD trip time",
+    "rcd_button_ok": "RCD test button works",
+}
+#: Readings in ohms besides the ring test's own (shown like them: "0.74 Ω").
+OHM_READINGS = ("zs_measured", "ln_terminals", "le_terminals")
+#: Outlet readings' "where taken" and the cpc's kind, in words.
+CHOICE_WORDS = {
+    "taken_at": {"front": "the socket front (plug-in lead)", "terminals": "the terminals"},
+    "cpc_kind": {"cable_core": "a core of the cable", "conduit": "the conduit",
+                 "trunking": "the trunking", "armour": "the cable armour",
+                 "separate": "a separate conductor"},
 }
 #: Fields that only join the tables together: not a diary entry.
 HIDDEN = ("job_id", "circuit_id", "position", "id")
@@ -52,7 +68,8 @@ USER_FIELDS = ("tester_id", "created_by", "reviewed_by_id", "approved_by_id",
                "safety_confirmed_by_id")
 UNITS = {"ocpd_rating_a": "A", "fuse_a": "A", "rcd_rated_ma": "mA", "live_csa_mm2": "mm²",
          "cpc_csa_mm2": "mm²", "spur_csa_mm2": "mm²", "spur_cpc_csa_mm2": "mm²",
-         "cable_length_m": "m", "ze_ohm": "Ω"}
+         "cable_length_m": "m", "ze_ohm": "Ω", "pfc_ka": "kA", "ir_test_v": "V",
+         "rcd_trip_ms": "ms"}
 STATUS_WORDS = {"in_progress": "in progress", "submitted": "submitted",
                 "returned": "returned to the tester", "approved": "approved"}
 STEP_WORDS = {"safety": "safety checks", "e2e": "step 1", "ln": "step 2", "le": "step 3",
@@ -117,8 +134,12 @@ def value_words(field: str, text: str | None, users: dict[int, str]) -> str:
     """One logged value in words, without its unit (the change line adds it once)."""
     if text is None or text == "":
         return NOTHING
-    if field in READING_FIELDS:
+    if field in READING_FIELDS or field in OHM_READINGS:
         return "OL" if text == "OL" else _reading(text)
+    if field in CHOICE_WORDS:
+        return CHOICE_WORDS[field].get(text, text)
+    if field.startswith("ir_") and field.endswith("_mohm"):
+        return f"{text.replace('>', '> ', 1)} MΩ"
     if text in ("true", "false"):
         return "yes" if text == "true" else "no"
     if field in USER_FIELDS:
@@ -144,7 +165,7 @@ def change_words(field: str, old: str | None, new: str | None,
     """(old, new, unit): "0.38", "0.40", "Ω" for a reading; the unit printed once after new,
     or after each side when only one is a number ("0.26 Ω → OL")."""
     before, after = value_words(field, old, users), value_words(field, new, users)
-    unit = "Ω" if field in READING_FIELDS else UNITS.get(field, "")
+    unit = "Ω" if field in READING_FIELDS or field in OHM_READINGS else UNITS.get(field, "")
     if not unit:
         return before, after, ""
     numeric = [w not in (NOTHING, "OL") for w in (before, after)]
