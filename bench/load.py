@@ -151,6 +151,8 @@ def run_phone(base, username, circuit_id, pace, deadline, rng, out, lock):
     keys = outlet_keys(phone, circuit_id)
     plan = [(step, key) for step in ("ln", "le") for key in keys]
     n = 0
+    if pace == "human":  # phones start at different moments, as testers on different sites
+        time.sleep(rng.uniform(0, 15))
     while time.monotonic() < deadline and n < MAX_REQUESTS_PER_PHONE:
         step, key = plan[n % len(plan)]
         base_value = 0.26 if step == "ln" else 0.34
@@ -162,6 +164,9 @@ def run_phone(base, username, circuit_id, pace, deadline, rng, out, lock):
             {"step": step, "outlet": key, "value": value, "client_id": client_id})
         ready = elapsed
         url = reply.get("diagnosis_url") if isinstance(reply, dict) else None
+        timed = True
+        if url and pace == "flat" and n % 10:
+            url, timed = None, False  # flat out: save again at once; every 10th waits, timed
         while url and time.monotonic() < deadline + 30:  # diagnosis computed after the save
             code, _ = phone.request("GET", url)
             if code == 200:
@@ -170,7 +175,8 @@ def run_phone(base, username, circuit_id, pace, deadline, rng, out, lock):
             time.sleep(0.1)
         with lock:
             out["latency"].append(elapsed)
-            out["ready"].append(ready)
+            if timed:
+                out["ready"].append(ready)
             if status == 200 and reply.get("stored"):
                 out["stored"].append(client_id)
             elif status != 200:

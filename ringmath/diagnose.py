@@ -139,7 +139,11 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
         conf = _cap(ranking.fit_weight(combos, weights, best_fit), prep)
         findings.append(_fit_finding(used, best_fit, conf, post, place, names))
     front = {o.id for o in test.outlets if getattr(o, "taken_at", None) == "front"}
-    local = [(lf, _cap(ranking.local_weight(combos, weights, lf), prep)) for lf in best.local]
+    local = []
+    for lf in best.local:
+        p = ranking.local_weight(combos, weights, lf)
+        # tied explanations share one probability: the pair is capped, each keeps its part
+        local.append((lf, min(p, _cap(1.0, prep) * lf.tie_share) if lf.tie else _cap(p, prep)))
     findings.extend(explain.local_findings(used, local, names, front))
     p_setup = ranking.setup_weight(combos, weights)
     if best.setup is not None:

@@ -114,12 +114,15 @@ def local_findings(prep: Prepared, faults: list[tuple[LocalFault, float]], names
             out.append(Finding("high_resistance_joint", joint_severity(lf.r_ohm or 0.0), msg,
                                nxt, (lf.outlet,), conductor=lf.conductor, confidence=conf))
         else:
-            for code, conductor, swap in ((lf.code, lf.conductor, lf.swap), lf.tie):
+            tie_conf = conf * (1.0 - lf.tie_share) / lf.tie_share if lf.tie else conf
+            for (code, conductor, swap), c in (((lf.code, lf.conductor, lf.swap), conf),
+                                                (lf.tie, tie_conf)):
                 msg, nxt = messages.ol_pattern(name, code, conductor, swap)
                 if lf.tie:
-                    msg += " Both explanations fit these readings equally."
+                    msg += (" Both explanations fit these readings equally; the first is the "
+                            "more common.")
                 out.append(Finding(code, "fault", msg, nxt, (lf.outlet,), conductor=conductor,
-                                   confidence=conf))
+                                   confidence=c))
     return out
 
 

@@ -43,7 +43,9 @@ LOCAL_PRIORS = {
     "unrecorded_spur": 0.02,
     "high_resistance_joint": 0.01,
     "reversed_polarity": 0.01,
-    "open_conductor": 0.01,
+    # a conductor not connected at a ring outlet while its end-to-end reading stays continuous
+    # needs the ring's two cores joined elsewhere in the box (a connector): rarer than a swap
+    "open_conductor": 0.004,
 }
 #: Prior range of an unrecorded spur's line resistance, ohms (about 2 m to 50 m of 2.5 mm²),
 #: and of a joint's resistance; the evidence averages over a uniform grid of R_POINTS values
@@ -85,12 +87,16 @@ class LocalFault:
     swap: str | None = None
     tie: tuple | None = None
     share: float | None = None
+    tie_share: float = 0.5
 
-    def confidence(self) -> float:
-        """Probability that the outlet has this fault rather than being as recorded or having
-        another of the alternatives (``share``; a tie halves it)."""
+    def confidence(self, of_tie: bool = False) -> float:
+        """Probability that the outlet has this fault (or, ``of_tie``, the tied one) rather
+        than being as recorded or having another of the alternatives (``share``); tied
+        explanations split it by their priors (``tie_share`` is the leading one's part)."""
         p = self.share if self.share is not None else 1.0 / (1.0 + np.exp(-self.gain))
-        return float(p / 2 if self.tie else p)
+        if not self.tie:
+            return float(p)
+        return float(p * ((1.0 - self.tie_share) if of_tie else self.tie_share))
 
 
 def _best_fit(x: np.ndarray, sd: float) -> np.ndarray:
@@ -106,10 +112,17 @@ def _ol_faults(outlet: str, ln: float, le: float) -> LocalFault | None:
     pattern = (bool(np.isinf(ln)), bool(np.isinf(le)))
     if pattern not in OL_PATTERNS:
         return None
-    (code, conductor, swap), tie = OL_PATTERNS[pattern]
+    first, second = OL_PATTERNS[pattern]
+    # the two explanations predict the same readings: the likelier by its prior leads, and
+    # each takes its prior's share of the probability
+    if LOCAL_PRIORS[second[0]] > LOCAL_PRIORS[first[0]]:
+        first, second = second, first
+    code, conductor, swap = first
+    prior = LOCAL_PRIORS[code] + LOCAL_PRIORS[second[0]]
     ratio = np.log1p(-P_OL_FALSE) - np.log(P_OL_FALSE)
-    gain = ratio * sum(pattern) + np.log(LOCAL_PRIORS[code])
-    return LocalFault(outlet, code, conductor, float(gain), None, swap, tie)
+    gain = ratio * sum(pattern) + np.log(prior)
+    return LocalFault(outlet, code, conductor, float(gain), None, swap, second,
+                      tie_share=LOCAL_PRIORS[code] / prior)
 
 
 def _options(prep: Prepared) -> list[tuple]:

@@ -45,10 +45,12 @@ P_NONE = 1.0 - sum(SETUP_PRIORS.values())
 #: Offsets searched, ohms: over-nulled by 0.06 to 0.15 Ω not nulled (0 is "none").
 OFFSET_GRID_OHM = np.array([d for d in np.round(np.arange(-0.06, 0.1501, 0.01), 3) if d != 0])
 #: An offset up to this either way (ohms) leaves the readings usable (common practice judges
-#: readings within 0.05 Ω); beyond it they must be re-taken.
+#: readings within 0.05 Ω); beyond it, re-take them.
 OFFSET_TOLERATED_OHM = 0.05
 #: Small gains between step 1 and steps 2-3 (warmer cable, meter gain), fractions.
 GAIN_GRID = np.array([-0.06, -0.04, -0.02, 0.02, 0.04, 0.06, 0.08])
+#: Gains searched beside every offset (steps 2-3 against step 1; 0-4 % warmer, fractions).
+OFFSET_GAINS = (0.0, 0.02, 0.04)
 #: Gross factors between step 1 and steps 2-3 that no wiring makes on every reading: 0.33x to
 #: 3x, evenly in log steps of 1.5 % (fine enough that the nearest sits within a reading's
 #: noise), leaving out 0.8x-1.25x (the gain's range and beyond what temperature can do).
@@ -91,11 +93,15 @@ def _variants(e2e: np.ndarray) -> list[tuple[str, float, float, float, float, fl
     rows = [("none", 0.0, 0.0, 0.0, 0.0, 0.0)]
     low = float(np.min(e2e))
     for d in OFFSET_GRID_OHM:
+        # each offset is searched with the small gain a warmer cable on the later day adds
+        # (OFFSET_GAINS, averaged over): else the warmth is read as part of the offset
+        for g in OFFSET_GAINS:
+            if low - d > 0.005:
+                rows.append(("leads", d, d, d, d, g))
+            rows.append(("offset_ln", d, 0.0, d, 0.0, g))
+            rows.append(("offset_le", d, 0.0, 0.0, d, g))
         if low - d > 0.005:
-            rows.append(("leads", d, d, d, d, 0.0))
             rows.append(("offset_r", d, d, 0.0, 0.0, 0.0))
-        rows.append(("offset_ln", d, 0.0, d, 0.0, 0.0))
-        rows.append(("offset_le", d, 0.0, 0.0, d, 0.0))
     rows += [("gain", g, 0.0, 0.0, 0.0, g) for g in GAIN_GRID]
     rows += [("scale", f, 0.0, 0.0, 0.0, f - 1.0) for f in SCALE_GRID]
     return rows

@@ -248,7 +248,11 @@ def test_ol_patterns_name_both_explanations(ln, le, expected):
     result = diagnose(_record(outlets))
     pairs = {(f["code"], f["conductor"]) for f in _faults(result) if f["outlets"] == ["s3"]}
     assert pairs == expected
-    assert all(f["confidence"] <= 0.5 for f in _faults(result) if f["outlets"] == ["s3"])
+    # the readings cannot tell the two apart: they share one probability, split by their priors
+    # (a swap is the more common; local.LOCAL_PRIORS)
+    tied = {f["code"]: f["confidence"] for f in _faults(result) if f["outlets"] == ["s3"]}
+    assert sum(tied.values()) <= 0.97 + 0.01  # the cap, and rounding to 0.01
+    assert tied["reversed_polarity"] > tied["open_conductor"]
 
 
 def test_step_two_alone_raised_at_one_outlet_is_a_neutral_joint():
