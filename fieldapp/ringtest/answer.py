@@ -19,8 +19,11 @@ from __future__ import annotations
 
 from fieldapp.labels import SEVERITY_WORDS, ohm, outlet_names, verdict_word
 
-#: Two fault explanations whose confidences are within this factor "fit about as well".
-SIMILAR_LIKELIHOOD = 2.0
+#: Two fault explanations whose confidences are within this factor "fit about as well": odds
+#: below about 3.2 to 1 are "not worth more than a bare mention" on Jeffreys' scale of
+#: evidence (H. Jeffreys, Theory of Probability, 3rd ed. 1961, Appendix B), so the readings do
+#: not decide between them and the more dangerous is listed first.
+SIMILAR_LIKELIHOOD = 3.2
 #: Danger rank of each fault code (higher first), common practice of the trade: a missing
 #: earth path leaves no fault protection at all; reversed polarity leaves parts live when
 #: switched off; a broken ring conductor leaves a
