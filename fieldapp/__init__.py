@@ -107,7 +107,7 @@ def _register_pages(app: Flask) -> None:
 
     @app.get("/sw.js")
     def service_worker():
-        response = send_from_directory(app.static_folder, "sw.js", max_age=0)
+        response = send_from_directory(app.static_folder or "static", "sw.js", max_age=0)
         response.headers["Service-Worker-Allowed"] = "/"
         response.headers["Cache-Control"] = "no-cache"
         return response

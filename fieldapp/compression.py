@@ -36,7 +36,8 @@ def static_brotli(response: Response) -> Response:
     response.headers["Content-Encoding"] = "br"
     response.headers["Vary"] = "Accept-Encoding"
     response.set_etag(f"{etag}-br")
-    return response.make_conditional(request)
+    response.make_conditional(request)  # werkzeug types its result as its own Response
+    return response
 
 
 def install(app: Flask) -> None:

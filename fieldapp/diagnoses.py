@@ -18,6 +18,7 @@ import hashlib
 import json
 import logging
 from pathlib import Path
+from typing import cast
 
 import sqlalchemy as sa
 from sqlalchemy.exc import IntegrityError, OperationalError
@@ -60,7 +61,8 @@ def _load(record_hash: str) -> str | None:
 
 
 def _store(record_hash: str, result_text: str) -> None:
-    table = StoredDiagnosis.__table__
+    # DeclarativeBase types __table__ as the wider FromClause; a mapped class's is a Table.
+    table = cast(sa.Table, StoredDiagnosis.__table__)
     try:
         with db.engine.begin() as connection:
             connection.execute(table.insert().values(

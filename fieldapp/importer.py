@@ -7,6 +7,7 @@ fieldapp.changes, so an imported job has the same history as one typed in.
 from __future__ import annotations
 
 import datetime as dt
+from typing import Any
 
 from sqlalchemy import select
 
@@ -27,13 +28,13 @@ def circuit_fields(block: dict) -> dict:
     # back to the packages that import this module)
     from fieldapp.live.values import live_circuit_fields
 
-    ocpd = block.get("ocpd") or {}
+    ocpd: dict[str, Any] = block.get("ocpd") or {}
     rcd = block.get("rcd") or {}
     board, way = _split_reference(str(block.get("reference") or ""))
     return {
         "board": board, "way": way, "description": block.get("description") or "",
         "ocpd_standard": ocpd.get("standard"), "ocpd_curve": ocpd.get("curve") or None,
-        "ocpd_rating_a": float(ocpd.get("rating_a")),
+        "ocpd_rating_a": float(ocpd["rating_a"]),  # required by the parser
         "rcd_rated_ma": float(rcd["rated_ma"]) if rcd.get("rated_ma") else None,
         "rcd_type": rcd.get("type") or None,
         "live_csa_mm2": float(block.get("live_csa_mm2", 2.5)),

@@ -7,12 +7,19 @@ them: a number string such as "0.52", "OL", or NULL for a reading not taken yet.
 from __future__ import annotations
 
 import datetime as dt
+from typing import TYPE_CHECKING
 
 from flask_login import UserMixin
 from sqlalchemy import ForeignKey, Index, String, Text, UniqueConstraint, text
 from sqlalchemy.orm import Mapped, mapped_column, relationship
 
 from fieldapp.extensions import db
+
+if TYPE_CHECKING:
+    # db.Model is a variable to mypy (Flask-SQLAlchemy builds it at run time from Base).
+    from fieldapp.extensions import Base as Model
+else:
+    Model = db.Model
 
 ROLES = ("apprentice", "tester", "supervisor")
 JOB_STATUSES = ("in_progress", "submitted", "returned", "approved")
@@ -26,7 +33,7 @@ def utcnow() -> dt.datetime:
     return dt.datetime.now(dt.UTC).replace(tzinfo=None)
 
 
-class User(UserMixin, db.Model):
+class User(UserMixin, Model):
     __tablename__ = "user"
 
     id: Mapped[int] = mapped_column(primary_key=True)
@@ -50,7 +57,7 @@ class User(UserMixin, db.Model):
         return f"{self.id}:{self.session_version}"
 
 
-class Job(db.Model):
+class Job(Model):
     __tablename__ = "job"
 
     id: Mapped[int] = mapped_column(primary_key=True)
@@ -85,7 +92,7 @@ class Job(db.Model):
         back_populates="job", order_by="Circuit.position")
 
 
-class Circuit(db.Model):
+class Circuit(Model):
     __tablename__ = "circuit"
 
     id: Mapped[int] = mapped_column(primary_key=True)
@@ -139,7 +146,7 @@ class Circuit(db.Model):
         back_populates="circuit", order_by="Outlet.position")
 
 
-class Outlet(db.Model):
+class Outlet(Model):
     __tablename__ = "outlet"
     __table_args__ = (UniqueConstraint("circuit_id", "key"),)
 
@@ -165,7 +172,7 @@ class Outlet(db.Model):
     circuit: Mapped[Circuit] = relationship(back_populates="outlets")
 
 
-class ChangeLog(db.Model):
+class ChangeLog(Model):
     """Append-only history of every write: who, from which device, old value -> new value."""
 
     __tablename__ = "change_log"
@@ -189,7 +196,7 @@ class ChangeLog(db.Model):
     user: Mapped[User | None] = relationship()
 
 
-class StoredDiagnosis(db.Model):
+class StoredDiagnosis(Model):
     """A diagnosis computed once per distinct circuit record and engine, shared by every worker
     and server (a cache: a row can always be recomputed from the record)."""
 
@@ -205,7 +212,7 @@ class StoredDiagnosis(db.Model):
     created_at: Mapped[dt.datetime] = mapped_column(default=utcnow)
 
 
-class RememberToken(db.Model):
+class RememberToken(Model):
     """A "keep me logged in" token: the cookie holds selector:secret, the table the secret's
     SHA-256. A new one on every login; revoked at sign-out and with the session version."""
 
@@ -220,7 +227,7 @@ class RememberToken(db.Model):
     revoked_at: Mapped[dt.datetime | None]
 
 
-class LoginAttempt(db.Model):
+class LoginAttempt(Model):
     """One sign-in attempt, kept a day: the failure limits per account and per address."""
 
     __tablename__ = "login_attempt"
@@ -234,7 +241,7 @@ class LoginAttempt(db.Model):
     succeeded: Mapped[bool] = mapped_column(default=False)
 
 
-class UserEvent(db.Model):
+class UserEvent(Model):
     """What was done to an account and by whom: created, disabled, password reset, ..."""
 
     __tablename__ = "user_event"

@@ -113,7 +113,7 @@ def _shifted(value: float, places: int) -> str:
     return text
 
 
-def check_slip(circuit: Circuit, field: str, value_ohm: float,
+def check_slip(circuit: Circuit, field: str, value_ohm: float | None,
                outlet: Outlet | None) -> Slip | None:
     """A Slip when ``value_ohm`` is out of its band and the same digits with the decimal point
     one place left or right fall inside it (within 25 % of the expected value when no band is

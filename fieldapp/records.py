@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import logging
+from typing import Any
 
 from flask import current_app
 
@@ -80,7 +81,7 @@ def circuit_block(circuit: Circuit) -> dict:
 
 def circuit_record(circuit: Circuit, *, with_job: bool = True) -> dict:
     """The circuit as a plain ``ringtest/1`` record dict (deleted outlets left out)."""
-    record = {"format": FORMAT}
+    record: dict[str, Any] = {"format": FORMAT}
     if with_job:
         record["job"] = job_block(circuit.job)
     record["circuit"] = circuit_block(circuit)

@@ -8,6 +8,8 @@ or 422 naming the document) instead of a RecursionError deep in a parser.
 from __future__ import annotations
 
 import json
+from collections.abc import Iterable
+from typing import Any
 
 from flask.json.provider import DefaultJSONProvider
 
@@ -26,7 +28,7 @@ def depth(value) -> int:
     while stack:
         item, level = stack.pop()
         if isinstance(item, dict):
-            children = item.values()
+            children: Iterable[Any] = item.values()
         elif isinstance(item, list):
             children = item
         else:

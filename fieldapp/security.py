@@ -61,8 +61,9 @@ def install(app: Flask) -> None:
     app.after_request(add_headers)
     hops = int(app.config.get("PROXY_HOPS") or 0)
     if hops > 0:
-        app.wsgi_app = ProxyFix(app.wsgi_app, x_for=hops, x_proto=hops, x_host=hops,
-                                x_port=hops, x_prefix=hops)
+        # Flask's documented way to add WSGI middleware; its stubs declare wsgi_app a method
+        app.wsgi_app = ProxyFix(  # type: ignore[method-assign]
+            app.wsgi_app, x_for=hops, x_proto=hops, x_host=hops, x_port=hops, x_prefix=hops)
 
 
 def _sqlite_pragmas(dbapi_connection, _record) -> None:

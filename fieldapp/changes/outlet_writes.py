@@ -47,7 +47,10 @@ def add_outlet(circuit: Circuit, values: dict, actor: Actor,
     client_id = check_client_id(client_id)
     earlier = seen(client_id)
     if earlier is not None:
-        return db.session.get(Outlet, earlier.entity_id)
+        outlet = db.session.get(Outlet, earlier.entity_id)
+        if outlet is None:
+            raise LookupError(f"client_id: outlet {earlier.entity_id} it made is gone")
+        return outlet
     _check_spur_source(circuit, values.get("spur_from_key"), None)
     if len(live_outlets(circuit)) >= limits.MAX_OUTLETS_PER_CIRCUIT or sum(
             len(live_outlets(c)) for c in circuit.job.circuits) >= limits.MAX_OUTLETS_PER_JOB:
@@ -80,7 +83,7 @@ def _check_spur_source(circuit: Circuit, key: str | None, outlet: Outlet | None)
         raise ValueError(f"spur_from: no outlet {key!r} on this circuit")
     if outlet is None:
         return
-    cur = keys[key]
+    cur: Outlet | None = keys[key]
     while cur is not None:  # the new feed must not lead back to the outlet itself
         if cur.key == outlet.key:
             raise ValueError("spur_from: an outlet cannot be fed from itself or its own spur")

@@ -7,6 +7,8 @@ L–N at every outlet; step 3 joins L1 to CPC2 and L2 to CPC1 and measures L–C
 
 from __future__ import annotations
 
+from typing import Any
+
 from markupsafe import Markup
 
 from fieldapp.drawings.svg import (
@@ -29,7 +31,7 @@ _ROWS = {"L": 78, "N": 128, "CPC": 178}
 _LEFT_TERMINAL = 112
 _RIGHT_TERMINAL = 248
 
-_STEPS = {
+_STEPS: dict[str, dict[str, Any]] = {
     "e2e": {
         "title": "Step 1: end-to-end readings r1, rn, r2",
         "links": (),
@@ -123,10 +125,10 @@ def connection_diagram(step: str) -> Markup:
     if step == "e2e":
         middle = (_LEFT_TERMINAL + _RIGHT_TERMINAL) / 2
         readings = zip(_ROWS.values(), ("r1", "rn", "r2"), strict=True)
-        for number, (y, reading) in enumerate(readings, start=1):
-            body.append(_line(_LEFT_TERMINAL + 6, y, middle - 12, y, dash="2 3"))
-            body.append(_line(middle + 12, y, _RIGHT_TERMINAL - 6, y, dash="2 3"))
-            body.append(_meter(middle, y, f"{number}: {reading}"))
+        for number, (row_y, reading) in enumerate(readings, start=1):
+            body.append(_line(_LEFT_TERMINAL + 6, row_y, middle - 12, row_y, dash="2 3"))
+            body.append(_line(middle + 12, row_y, _RIGHT_TERMINAL - 6, row_y, dash="2 3"))
+            body.append(_meter(middle, row_y, f"{number}: {reading}"))
     for left_core, right_core in spec["links"]:
         x1, y1 = _LEFT_TERMINAL, _ROWS[left_core]
         x2, y2 = _RIGHT_TERMINAL, _ROWS[right_core]
@@ -136,7 +138,7 @@ def connection_diagram(step: str) -> Markup:
     if spec["links"]:
         body.append(_text(WIDTH / 2, 218, "black lines: temporary links", size=11,
                           anchor="middle", fill=MUTED))
-    y = 244
+    y: float = 244
     if spec["outlet"]:
         body += _outlet_face(24, y, spec["outlet"])
         body.append(_text(24, y - 6, "At each outlet:", size=12, weight="bold"))

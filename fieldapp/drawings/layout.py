@@ -59,7 +59,7 @@ def _finite(value) -> float | None:
 
 def _agrees_with_order(known: list[float | None]) -> bool:
     """Known positions rise along the ring order (equal ones only side by side)."""
-    last_i, last_v = None, None
+    last_i, last_v = -1, None  # last_i is read only once a known position was seen
     for i, v in enumerate(known):
         if v is None:
             continue
@@ -74,14 +74,15 @@ def _centre_ties(known: list[float | None], gap: float) -> list[float | None]:
     out = list(known)
     i = 0
     while i < len(known):
-        if known[i] is None:
+        value = known[i]
+        if value is None:
             i += 1
             continue
         j = i
-        while j + 1 < len(known) and known[j + 1] == known[i]:
+        while j + 1 < len(known) and known[j + 1] == value:
             j += 1
         for m in range(i, j + 1):
-            out[m] = known[i] + (m - (i + j) / 2) * gap
+            out[m] = value + (m - (i + j) / 2) * gap
         i = j + 1
     return out
 
@@ -107,7 +108,10 @@ def ring_positions(diagnosis: dict) -> dict[str, float]:
         known = [None] * n
     known = _centre_ties(known, gap)
     anchors = [(-1, 0.0)] + [(i, v) for i, v in enumerate(known) if v is not None] + [(n, 1.0)]
-    spread = list(known)
+    # every point is an anchor or lies between two, so each gets a value below
+    spread = [0.0] * n
+    for i, v in anchors[1:-1]:
+        spread[i] = v
     for (i0, v0), (i1, v1) in zip(anchors, anchors[1:], strict=False):
         for k in range(i0 + 1, i1):
             spread[k] = v0 + (v1 - v0) * (k - i0) / (i1 - i0)

@@ -179,6 +179,8 @@ def _marker(x: float, verdict: str, value: float | None, y_of, plot_top: float, 
                          stroke=INK, width=1)
                 + _text(x, y + 24, "OL", size=11, anchor="middle", weight="bold", fill=ALERT,
                         title=f"{label}: OL (open)"))
+    if value is None:
+        raise ValueError(f"value: a {verdict!r} reading of {label} needs a number")
     y = y_of(value)
     tip = f"{label}: {_ohms(value)} Ω"
     if verdict in ("high", "low"):

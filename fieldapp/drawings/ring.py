@@ -135,7 +135,7 @@ def _fault_marks(fault: dict, ring_xy) -> tuple[list[str], list[str]]:
     """The chord of a bridged section (drawn under the points) or the cross at a break or
     joint (drawn over them, so a point on the spot cannot hide it)."""
     out = []
-    word = FAULT_WORDS.get(fault.get("code"), "fault?")
+    word = FAULT_WORDS.get(str(fault.get("code")), "fault?")
     conductor = fault.get("conductor")
     if conductor in ("line", "neutral", "cpc") and fault.get("code") == "open_conductor":
         word = f"open {conductor}?"

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import textwrap
 from html import escape
+from typing import NotRequired, TypedDict
 
 from markupsafe import Markup
 
@@ -23,7 +24,17 @@ BAND_FILL = "#e3e3e3"
 
 #: Harmonised core colours of fixed wiring (line brown, neutral blue, protective conductor
 #: green-and-yellow: BS 7671:2018 Table 51), each with a line style that survives grey print.
-CORES = {
+
+class CoreStyle(TypedDict):
+    """How one core is drawn: its name, colour, dash pattern and (CPC) stripe colour."""
+
+    name: str
+    colour: str
+    dash: str | None
+    stripe: NotRequired[str]
+
+
+CORES: dict[str, CoreStyle] = {
     "L": {"name": "line", "colour": "#7b4a1e", "dash": None},
     "N": {"name": "neutral", "colour": "#1f5fb4", "dash": "8 4"},
     "CPC": {"name": "cpc", "colour": "#2e7d32", "dash": None, "stripe": "#f2c200"},

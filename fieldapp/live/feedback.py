@@ -23,6 +23,8 @@ LIVE_CAUTION = ("Zs, RCD and fault current are measured with the supply on: only
 MARGINAL_WORDS = "marginal: re-measure"
 ESTIMATED_WORDS = "estimated"
 DASH = "—"
+#: The RCD test button, as recorded (True / False) or not checked (None).
+_BUTTON_WORDS: dict[object, str] = {True: "yes", False: "NO"}
 #: How many suggestions of each kind the page makes.
 SUGGEST_RING, SUGGEST_SPURS = 2, 2
 
@@ -165,7 +167,8 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
         })
     insulation = circuit.get("insulation") or {}
     ir_result = result.get("insulation") or {}
-    ir_ok = ir_result.get("ok") if isinstance(ir_result.get("ok"), dict) else {}
+    ok = ir_result.get("ok")
+    ir_ok = ok if isinstance(ok, dict) else {}
     rcd = circuit.get("rcd") or {}
     rcd_result = result.get("rcd") or {}
     return {
@@ -188,7 +191,7 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
             "rated": _quantity(rcd.get("rated_ma"), "mA"),
             "type": rcd.get("type") or DASH,
             "trip": _quantity(rcd.get("trip_ms"), "ms"),
-            "button": {True: "yes", False: "NO"}.get(rcd.get("button_ok"), "not checked"),
+            "button": _BUTTON_WORDS.get(rcd.get("button_ok"), "not checked"),
             "limit": _quantity(rcd_result.get("max_trip_ms"), "ms"),
             "result": result_word(rcd_result.get("trip_ok")) if rcd.get("trip_ms") is not None
             else DASH,

@@ -92,7 +92,7 @@ class ScheduleFields:
         if rcd:
             doc["rcd"] = {**rcd, "trip_ms": text.get("rcd_trip_ms") or None,
                           "button_ok": {"yes": True, "no": False}.get(
-                              text.get("rcd_button_ok"))}
+                              text.get("rcd_button_ok") or "")}
         try:
             values = parse_circuit_fields(doc)
         except ValueError as error:

@@ -167,7 +167,7 @@ def taken_at(circuit_id: int, key: str):
         db.session.rollback()
         return _refused(circuit, refused)
     db.session.commit()
-    words = TAKEN_AT_LABELS.get(outlet.taken_at, "not said")
+    words = TAKEN_AT_LABELS.get(outlet.taken_at or "", "not said")
     flash(f"Outlet {outlet.key}: readings taken {words}." if changed else "Nothing changed.",
           "ok")
     return redirect(url_for("live.page", circuit_id=circuit.id,

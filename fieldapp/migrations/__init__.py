@@ -37,4 +37,7 @@ def current_revision(engine) -> str | None:
 
 def head_revision() -> str:
     """The newest revision in this folder."""
-    return ScriptDirectory.from_config(alembic_config()).get_current_head()
+    head = ScriptDirectory.from_config(alembic_config()).get_current_head()
+    if head is None:
+        raise RuntimeError("migrations: no revision found in the versions folder")
+    return head

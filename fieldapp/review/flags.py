@@ -3,6 +3,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from fieldapp.review.gate import CircuitProblems
 
 
@@ -16,8 +18,9 @@ def job_flags(groups: list[CircuitProblems], submit_reason: str | None = None,
     circuits whose safe isolation is not confirmed; despite: "submitted" / "approved" when a
     reason was given to go on with problems; all_clear: no problem at all.
     """
-    flags = {"faults": [], "findings": 0, "zs_fail": 0, "zs_unproved": 0, "missing": 0, "safety": 0,
-             "despite": [], "problems": sum(len(g.problems) for g in groups)}
+    flags: dict[str, Any] = {"faults": [], "findings": 0, "zs_fail": 0, "zs_unproved": 0,
+                             "missing": 0, "safety": 0, "despite": [],
+                             "problems": sum(len(g.problems) for g in groups)}
     for group in groups:
         for problem in group.problems:
             if problem.kind in ("verdict", "not_assessed"):

@@ -143,7 +143,7 @@ def _verdict(diagnosis: dict, listed: list[Problem]) -> list[Problem]:
         return []
     if verdict == "incomplete" and any(p.kind == "steps_missing" for p in listed):
         return []  # the missing steps say it already
-    word = VERDICT_WORDS.get(verdict, str(verdict))
+    word = VERDICT_WORDS.get(verdict or "", str(verdict))
     problems = [Problem("verdict", f"Assessment: {word}, not {VERDICT_WORDS['satisfactory']}. "
                                    f"{diagnosis.get('summary') or ''}".strip())]
     for finding in diagnosis.get("findings") or []:

@@ -168,6 +168,6 @@ def history(job_id: int):
     rows = job_diary(job, circuit_id, outlet_id, field)
     return render_template("review/history.html", job=job, rows=rows,
                            circuit_ref=circuit_reference(circuit) if circuit else None,
-                           outlet=outlet, field=FIELD_WORDS.get(field, field),
+                           outlet=outlet, field=FIELD_WORDS.get(field or "", field),
                            outlet_title=outlet_name(outlet.key, outlet.label) if outlet else "",
                            cautions=CAUTIONS)

@@ -5,6 +5,8 @@ Plain values for the templates from the database rows and ``ringmath.diagnose`` 
 
 from __future__ import annotations
 
+from typing import Any
+
 from flask import abort, render_template, url_for
 from markupsafe import Markup
 
@@ -62,6 +64,7 @@ def outlet_hint(outlet: Outlet) -> str:
 
 def reading_items(circuit: Circuit, step: str, diagnosis: dict | None) -> list[dict]:
     """One card per reading of the step: title, hint, stored value, feedback, its form."""
+    rows: list[tuple[str, Outlet | None, str, str, Any]]
     if step == "e2e":
         rows = [(f, None, title, hint, getattr(circuit, f)) for f, title, hint in E2E_READINGS]
     else:
@@ -125,7 +128,7 @@ def render_results(circuit: Circuit):
         names=labels.outlet_names(diagnosis), stepper=stepper(circuit, "results"),
         info=STEP_INFO["results"], cautions=labels.CAUTIONS,
         findings=answer.order_findings((diagnosis or {}).get("findings") or []),
-        zs=state, tiles=answer.tiles(diagnosis, state) if diagnosis else [],
+        zs=state, tiles=answer.tiles(diagnosis, state) if diagnosis and state is not None else [],
         ring_svg=drawings.ring_picture(shown) if shown else Markup(""),
         plot_svg=drawings.readings_plot(shown) if shown else Markup(""),
         safe=changes.safety_confirmed(circuit), severity_words=labels.SEVERITY_WORDS,

@@ -7,6 +7,8 @@ written through ``fieldapp.changes``.
 
 from __future__ import annotations
 
+from typing import Any
+
 from flask import abort, flash, redirect, render_template, request, url_for
 from flask_login import login_required
 
@@ -65,8 +67,8 @@ def safety(circuit_id: int):
         if form.validate_on_submit():
             if form.isolated.data and form.locked_off.data and form.proved_dead.data:
                 who = actor()
-                values = {"safety_isolated": True, "safety_locked_off": True,
-                          "safety_proved_dead": True}
+                values: dict[str, Any] = {"safety_isolated": True, "safety_locked_off": True,
+                                          "safety_proved_dead": True}
                 if not changes.safety_confirmed(circuit):
                     values.update({"safety_confirmed_by_id": who.user_id,
                                    "safety_confirmed_at": utcnow()})
@@ -152,11 +154,17 @@ def _outlet_errors(form: OutletForm) -> bool:
     return True
 
 
+def _outlet_step() -> str:
+    """The outlet step (``ln`` or ``le``) named by ``?step=``; ``ln`` for anything else."""
+    step = request.args.get("step")
+    return step if step is not None and step in ("ln", "le") else "ln"
+
+
 @bp.post("/<int:circuit_id>/outlets")
 @role_required(*TESTING_ROLES)
 def add_outlet(circuit_id: int):
     circuit = get_circuit(circuit_id)
-    step = request.args.get("step") if request.args.get("step") in ("ln", "le") else "ln"
+    step = _outlet_step()
     try:
         changes.check_ready_for_readings(circuit)
     except changes.Refused as refused:
@@ -185,7 +193,7 @@ def add_outlet(circuit_id: int):
 def edit_outlet(circuit_id: int, key: str):
     circuit = get_circuit(circuit_id)
     outlet = get_outlet(circuit, key)
-    back = request.args.get("step") if request.args.get("step") in ("ln", "le") else "ln"
+    back = _outlet_step()
     try:
         changes.check_editable(circuit.job)
     except changes.Refused as refused:
@@ -223,7 +231,7 @@ def _outlet_data(outlet: Outlet) -> dict:
 def delete_outlet(circuit_id: int, key: str):
     circuit = get_circuit(circuit_id)
     outlet = get_outlet(circuit, key)
-    back = request.args.get("step") if request.args.get("step") in ("ln", "le") else "ln"
+    back = _outlet_step()
     if not ActionForm().validate_on_submit():
         abort(400)
     try:

@@ -48,7 +48,7 @@ def _details(circuit: dict) -> list[tuple[str, str]]:
          " / ".join(_yes(safety.get(k)) for k in ("isolated", "locked_off", "proved_dead"))
          if safety is not None else "not recorded"),
         ("Safety checks confirmed", " ".join(
-            x for x in ((safety or {}).get("confirmed_by"), when(safety.get("confirmed_at"))
+            x for x in ((safety or {}).get("confirmed_by"), when((safety or {}).get("confirmed_at"))
                         if (safety or {}).get("confirmed_at") else None) if x) or DASH),
     ]
 
@@ -61,7 +61,7 @@ def _status_word(status: dict | None) -> str:
     status = status or {}
     if status.get("status") == "pending" and status.get("value") is not None:
         return NO_BAND
-    return READING_STATUS_WORDS.get(status.get("status"), "")
+    return READING_STATUS_WORDS.get(status.get("status") or "", "")
 
 
 def _names(rec: dict, diagnosis: dict) -> dict[str, str]:

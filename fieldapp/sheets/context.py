@@ -14,6 +14,7 @@ name at its old import path.
 from __future__ import annotations
 
 import datetime as dt
+from typing import Any
 
 from markupsafe import Markup
 
@@ -55,7 +56,7 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
                      drawing: str = "screen") -> dict:
     circuit = rec.get("circuit") or {}
     e2e = rec.get("end_to_end") or {}
-    ctx = {
+    ctx: dict[str, Any] = {
         "index": index + 1,
         "reference": circuit.get("reference") or f"Circuit {index + 1}",
         "description": circuit.get("description") or "",
@@ -88,9 +89,9 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         "result": _zs_result(summary),
     }
     ctx["zs_line"] = _zs_line(summary, ctx["outlets"])
-    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), labels.NOT_ASSESSED)
+    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict") or "", labels.NOT_ASSESSED)
     ctx["summary_sentence"] = diagnosis.get("summary") or problem or ""
-    ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict"), "")
+    ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict") or "", "")
                       if ctx["summary"]["result"] == _pass_word(True) else "")
     ctx["findings"] = _findings(diagnosis, _names(rec, diagnosis),
                                 {str(o["id"]): o.get("label") for o in rec.get("outlets") or []})
@@ -179,9 +180,9 @@ def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *
             ("Approved by", people.get("approved_by") or DASH),
             ("Approved", when(people.get("approved_at"))),
         ],
-        "status": STATUS_WORDS.get(people.get("status"), people.get("status") or ""),
+        "status": STATUS_WORDS.get(people.get("status") or "", people.get("status") or ""),
         "review_comment": people.get("review_comment") or "",
-        "verdict": VERDICT_WORDS.get(verdict, labels.NOT_ASSESSED),
+        "verdict": VERDICT_WORDS.get(verdict or "", labels.NOT_ASSESSED),
         "circuits": [_circuit_context(i, rec, d, p, drawing)
                      for i, (rec, d, p) in enumerate(zip(records, diagnoses, problems,
                                                          strict=True))],

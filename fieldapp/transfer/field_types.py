@@ -100,7 +100,7 @@ class Reading(fields.Field):
             raise self.make_error("invalid") from None
 
 
-class _IsoText:
+class _IsoText(fields.Field):
     """Dump ISO text as it is (the record builder gives dates as text), objects as ISO text."""
 
     def _serialize(self, value, attr, obj, **kwargs):

@@ -38,7 +38,7 @@ def export_job(job_id: int):
     headers = {}
     if request.args.get("download"):
         headers["Content-Disposition"] = f'attachment; filename="{file_name(job)}"'
-    return _json(export_document(job), **headers)
+    return _json(export_document(job), 200, **headers)
 
 
 def parse_upload(raw: bytes):

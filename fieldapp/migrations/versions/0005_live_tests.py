@@ -9,6 +9,8 @@ Revises: 0004
 Create Date: 2026-12-02
 """
 
+from typing import Any
+
 import sqlalchemy as sa
 from alembic import op
 
@@ -17,7 +19,7 @@ down_revision = "0004"
 branch_labels = None
 depends_on = None
 
-CIRCUIT_COLUMNS = (
+CIRCUIT_COLUMNS: tuple[tuple[str, sa.types.TypeEngine[Any]], ...] = (
     ("pfc_ka", sa.Double()),
     ("ir_test_v", sa.Double()),
     ("ir_ln_mohm", sa.String(length=16)),
