@@ -15,7 +15,7 @@ from dataclasses import replace
 
 import numpy as np
 
-from ringmath import checks, explain, messages, ranking, rules, setup_messages, zs
+from ringmath import calibration, checks, explain, messages, ranking, rules, setup_messages, zs
 from ringmath import verdict as verdicts
 from ringmath.findings import Finding
 from ringmath.fitting import Fit, position_posterior
@@ -37,6 +37,8 @@ CONFIDENCE_CAP = 0.97
 MISSING_STEP_CAP = 0.85
 #: A best explanation needing this many independent faults is doubted as a whole.
 MANY_FAULTS = 3
+#: The two explanations of an outlet's OL readings that the readings cannot tell apart.
+TIE_CODES = ("reversed_polarity", "open_conductor")
 
 
 def _posterior(prep: Prepared, fit: Fit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -124,6 +126,33 @@ def _cap(p: float, prep: Prepared) -> float:
     return float(min(p, MISSING_STEP_CAP if _missing_step(prep) else CONFIDENCE_CAP))
 
 
+def _stated(findings: list[Finding], hypotheses: list[dict], prep: Prepared) -> list[Finding]:
+    """Confidences as stated: each through the benchmark's monotone calibration
+    (``calibration.calibrated``), capped again. Two tied explanations of one outlet's OL
+    readings share one probability: their sum is calibrated and split as before. Decisions
+    made on the posterior (severity, worn-contacts doubt, tie shares) are not moved by it.
+    ``hypotheses`` are restated in place."""
+    top = MISSING_STEP_CAP if _missing_step(prep) else CONFIDENCE_CAP
+
+    def stated(p: float) -> float:
+        return min(calibration.calibrated(min(p, 1.0)), top)
+
+    for h in hypotheses:
+        h["confidence"] = round(stated(h["confidence"]), 3)
+    ties: dict[tuple[str, ...], list[int]] = {}
+    for i, f in enumerate(findings):
+        if f.confidence is not None and f.code in TIE_CODES and len(f.outlets) == 1:
+            ties.setdefault(f.outlets, []).append(i)
+    scale = {}
+    for members in ties.values():
+        total = sum(findings[i].confidence or 0.0 for i in members)
+        if len(members) > 1 and total > 0:
+            scale.update({i: stated(total) / total for i in members})
+    return [f if f.confidence is None else replace(
+        f, confidence=f.confidence * scale[i] if i in scale else stated(f.confidence))
+        for i, f in enumerate(findings)]
+
+
 def _fitted(test: RingTest, prep: Prepared) -> dict:
     """Fit, rank and locate. Returns findings, hypotheses, positions and ring order."""
 
@@ -151,7 +180,8 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
     findings.extend(explain.local_findings(used, local, names, front))
     p_setup = ranking.setup_weight(combos, weights)
     if best.setup is not None:
-        found = explain.setup_finding(best.setup, prep, cap(p_setup))
+        # "some set-up error" times this kind's share among the kinds: a finding names one kind
+        found = explain.setup_finding(best.setup, prep, cap(p_setup * best.setup.p_kind))
         if found is not None:
             findings.insert(0, found)
     independent = (best_fit.code != "healthy") + sum(
@@ -203,11 +233,12 @@ def _ring_order(test: RingTest, positions: dict) -> list[str]:
     return sorted(ring, key=lambda oid: positions[oid][0])
 
 
-def diagnose(record) -> dict:
+def diagnose(record, *, calibrate: bool = True) -> dict:
     """Diagnose one circuit record (dict in the ringtest/1 format, or a parsed RingTest).
 
     Returns the plain-values result documented in DEVELOPERS.md. Raises ValueError naming the
-    field for a bad record.
+    field for a bad record. ``calibrate=False`` states the raw posterior (capped): only for
+    fitting the calibration (bench/diag_calibrate.py).
     """
     test = record if isinstance(record, RingTest) else parse_record(record)
     findings: list[Finding] = []
@@ -237,6 +268,8 @@ def diagnose(record) -> dict:
         pos = fit_part["positions"].get(p["id"])
         p["position"] = None if pos is None or pos[0] is None else round(pos[0], 3)
         p["position_sd"] = None if pos is None else round(pos[1], 3)
+    if calibrate:
+        findings = _stated(findings, fit_part["hypotheses"], prep)
     said, findings = verdicts.agree(test, findings)
     return {
         "verdict": said,

@@ -4,7 +4,8 @@ Verdicts: "retest" when the leading finding doubts the readings, or a set-up che
 no credible fault stands; "investigate" for a credible fault; "incomplete" with steps or Ze
 missing; else "satisfactory" (which may carry warnings: checks to make).
 
-Agreement (``agree``): a wiring finding stated at CREDIBLE_P or more is a credible fault even
+Agreement (``agree``): a wiring finding stated at CREDIBLE_P or more (the calibrated figure of a
+posterior of 0.8) is a credible fault even
 where its severity is a warning (a joint under 0.10 Ω, an outlet read from the front): a
 satisfactory verdict never sits above it, the verdict is "investigate". Under a "retest"
 verdict every wiring finding beneath the lead is a warning and its confidence is scaled by
@@ -17,6 +18,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from ringmath import messages
+from ringmath.calibration import calibrated
 from ringmath.findings import Finding
 from ringmath.record import RingTest
 
@@ -28,9 +30,11 @@ RETEST_CODES = frozenset({"setup_lead_offset", "setup_lead_offset_step", "setup_
 #: Findings about the wiring itself (the fault classes of the model).
 WIRING_CODES = frozenset({"interconnection", "open_conductor", "wrong_cross_connection",
                           "unrecorded_spur", "reversed_polarity", "high_resistance_joint"})
-#: A wiring finding at this confidence or more is credible whatever its severity: more likely
-#: than not by four to one (the benchmark's "called at >= 80 %" line).
-CREDIBLE_P = 0.8
+#: A wiring finding whose posterior is at least this is credible whatever its severity: more
+#: likely than not by four to one. Judged on the stated (calibrated) confidence, CREDIBLE_P: the
+#: same findings, so calibrating the figures moves no verdict.
+CREDIBLE_POSTERIOR = 0.8
+CREDIBLE_P = calibrated(CREDIBLE_POSTERIOR)
 
 
 def complete(test: RingTest) -> bool:
