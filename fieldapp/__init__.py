@@ -12,7 +12,7 @@ from pathlib import Path
 
 from flask import Flask, redirect, request, send_from_directory, url_for
 
-from fieldapp import applog, background, compression, errors, security
+from fieldapp import applog, background, compression, errors, labels, security
 from fieldapp import config as app_config
 from fieldapp.extensions import csrf, db, login_manager
 from fieldapp.models import utcnow
@@ -116,6 +116,9 @@ def _register_pages(app: Flask) -> None:
     def page_globals():
         return {
             "can_test": can_test,
+            # every page's footer: the core's own cautions (advice, not certification; safe
+            # isolation), never a restatement
+            "footer_cautions": (labels.CAUTIONS[1], labels.CAUTIONS[0]),
             # when the page was made (UTC, ISO 8601): an offline copy says "as of" this time
             "rendered_at": lambda: utcnow().replace(microsecond=0).isoformat() + "Z",
         }

@@ -108,22 +108,33 @@ class Background:
                     self._cond.notify_all()
 
     def _diagnose(self, circuit_id: int) -> None:
-        from fieldapp import records
-        from fieldapp.extensions import db
-        from fieldapp.models import Circuit
+        failed = diagnose_one(self.app, circuit_id)
+        if failed is None:
+            self.failed.pop(circuit_id, None)
+        else:
+            self.failed[circuit_id] = failed
 
-        with self.app.app_context():
-            try:
-                circuit = db.session.get(Circuit, circuit_id)
-                if circuit is not None:
-                    _, problem = records.diagnose_circuit(circuit)
-                    if problem:
-                        log.info("circuit %s not diagnosed: %s", circuit_id, problem)
-                        self.failed[circuit_id] = records.record_hash(circuit)
-                    else:
-                        self.failed.pop(circuit_id, None)
-            finally:
-                db.session.remove()
+
+def diagnose_one(app: Flask, circuit_id: int) -> str | None:
+    """Diagnose (and store) one circuit's newest record in ``app``'s context, for the thread
+    here and the queue's workers alike. The record's hash when it cannot be diagnosed, else
+    None (also for a circuit deleted meanwhile)."""
+    from fieldapp import records
+    from fieldapp.extensions import db
+    from fieldapp.models import Circuit
+
+    with app.app_context():
+        try:
+            circuit = db.session.get(Circuit, circuit_id)
+            if circuit is None:
+                return None
+            _, problem = records.diagnose_circuit(circuit)
+            if not problem:
+                return None
+            log.info("circuit %s not diagnosed: %s", circuit_id, problem)
+            return records.record_hash(circuit)
+        finally:
+            db.session.remove()
 
 
 def init_app(app: Flask) -> None:

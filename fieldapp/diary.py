@@ -15,15 +15,16 @@ from zoneinfo import ZoneInfo
 
 from sqlalchemy import or_, select
 
-from fieldapp.labels import KIND_WORDS, outlet_name
+from fieldapp.labels import KIND_WORDS, outlet_name, reading_name, step_reading
 from fieldapp.records import circuit_reference
 
 #: Times are stored in UTC and shown in the company's own time zone.
 LOCAL = ZoneInfo("Europe/London")
 READING_FIELDS = ("r1", "rn", "r2", "ln", "le")
 FIELD_WORDS = {
-    "r1": "step 1 r1 (line)", "rn": "step 1 rn (neutral)", "r2": "step 1 r2 (cpc)",
-    "ln": "step 2 L–N", "le": "step 3 L–CPC",
+    # the readings by the app's one name for each (fieldapp/labels.py)
+    **{f: step_reading(f, capital=False) for f in READING_FIELDS},
+    **{f: reading_name(f) for f in ("zs_measured", "ln_terminals", "le_terminals")},
     "created": "created", "deleted_at": "deleted", "label": "label", "kind": "kind",
     "spur_from_key": "fed from", "fuse_a": "FCU fuse", "spur_csa_mm2": "spur cable size",
     "spur_cpc_csa_mm2": "spur cpc size", "key": "outlet id", "position": "order",
@@ -44,8 +45,7 @@ FIELD_WORDS = {
     "date": "test date", "notes": "notes", "tester_id": "tester", "created_by": "created by",
     "job_id": "job", "circuit_id": "circuit", "instrument_model": "test instrument",
     "instrument_serial": "instrument serial number",
-    "zs_measured": "measured Zs", "ln_terminals": "L–N re-measured at the terminals",
-    "le_terminals": "L–CPC re-measured at the terminals", "taken_at": "readings taken at",
+    "taken_at": "readings taken at",
     "cpc_kind": "cpc is", "parallel_paths": "parallel earth paths expected",
     "pfc_ka": "prospective fault current", "ir_test_v": "insulation test voltage",
     "ir_ln_mohm": "insulation L–N", "ir_le_mohm": "insulation L–E",

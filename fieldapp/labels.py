@@ -36,18 +36,23 @@ KIND_WORDS = {
 }
 
 #: Reading names by field: the short form and the form that says which step it is.
-READING_NAMES = {"r1": "r1", "rn": "rn", "r2": "r2", "ln": "L–N", "le": "L–CPC"}
+READING_NAMES = {"r1": "r1", "rn": "rn", "r2": "r2", "ln": "L–N", "le": "L–CPC",
+                 "zs_measured": "measured Zs",
+                 "ln_terminals": "L–N re-measured at the terminals",
+                 "le_terminals": "L–CPC re-measured at the terminals"}
 READING_STEP_NAMES = {"r1": "r1 (step 1)", "rn": "rn (step 1)", "r2": "r2 (step 1)",
                       "ln": "L–N (step 2)", "le": "L–CPC (step 3)"}
+#: The end-to-end readings with the conductor each is taken on.
+CONDUCTOR_NAMES = {"r1": "r1 (line)", "rn": "rn (neutral)", "r2": "r2 (cpc)"}
+#: The step each dead-test reading belongs to.
+STEP_OF = {"r1": 1, "rn": 1, "r2": 1, "ln": 2, "le": 3}
 
-#: Verdict words. ringmath owns them (``ringmath.messages.VERDICT_WORDS``); the mapping below
-#: holds the same words for a core that does not carry them yet.
-VERDICT_WORDS: dict[str, str] = dict(getattr(_core_words, "VERDICT_WORDS", None) or {
-    "satisfactory": "Satisfactory",
-    "investigate": "Investigate",
-    "retest": "Re-test",
-    "incomplete": "Incomplete",
-})
+#: Verdict words: ringmath's own (``ringmath.messages.VERDICT_WORDS``), never restated here.
+VERDICT_WORDS: dict[str, str] = dict(_core_words.VERDICT_WORDS)
+#: The verdict of a group of circuits (a job) is its worst one's, in this order (worst first).
+VERDICT_ORDER = ("investigate", "retest", "incomplete", "satisfactory")
+#: A circuit that could not be assessed at all (no diagnosis).
+NOT_ASSESSED = "Not assessed"
 
 #: The cautions shown wherever results are shown: only ever the core's own.
 CAUTIONS: tuple[str, ...] = tuple(_core_words.CAUTIONS)
@@ -61,6 +66,24 @@ STATUS_WORDS = {
     "pending": "not taken yet",
 }
 SEVERITY_WORDS = {"fault": "Fault", "warning": "Check", "info": "Note"}
+#: A job's status in words (badges, filters, sentences, the sheet).
+JOB_STATUS_WORDS = {
+    "in_progress": "in progress",
+    "submitted": "submitted",
+    "returned": "returned",
+    "approved": "approved",
+}
+
+
+def job_status_word(status: str | None, capital: bool = False) -> str:
+    """"submitted" (or "Submitted") for a job's status; the status itself when unknown."""
+    words = JOB_STATUS_WORDS.get(status or "", status or "")
+    return words[:1].upper() + words[1:] if capital else words
+
+
+def severity_word(severity: str | None) -> str:
+    """A finding's severity in words ("fault" or "FAULT" -> "Fault"); "Note" when unknown."""
+    return SEVERITY_WORDS.get(str(severity or "").lower(), "Note")
 
 #: One-line explanations of the terms an apprentice may not know, opened on tap.
 TERMS = {
@@ -103,6 +126,16 @@ def ohm(value, places: int = 2, unit: bool = True) -> str:
     return f"{value:.{places}f} Ω" if unit else f"{value:.{places}f}"
 
 
+#: ringmath's True / False / None for a pass or fail, in words that read in black and white.
+RESULT_WORDS = {True: "pass", False: "FAIL"}
+NOT_PROVED = "not proved"
+
+
+def result_word(ok) -> str:
+    """"pass", "FAIL" or "not proved" (None: a reading missing, OL, or no limit)."""
+    return RESULT_WORDS.get(ok, NOT_PROVED)
+
+
 def kind_label(kind: str | None, short: bool = False) -> str:
     """An outlet kind in words ("Twin socket", or "twin socket" with short=True)."""
     table = KIND_WORDS if short else KIND_LABELS
@@ -111,7 +144,18 @@ def kind_label(kind: str | None, short: bool = False) -> str:
 
 def reading_name(field: str, with_step: bool = False) -> str:
     """"L–N" or "L–N (step 2)" for the field "ln"; the field itself when unknown."""
-    return (READING_STEP_NAMES if with_step else READING_NAMES).get(field, field)
+    return ((READING_STEP_NAMES.get(field) if with_step else None)
+            or READING_NAMES.get(field, field))
+
+
+def step_reading(field: str, capital: bool = True) -> str:
+    """A dead-test reading led by its step: "Step 2 L–N", "Step 1 r1 (line)"; the reading's
+    name alone for a reading of no step."""
+    step = STEP_OF.get(field)
+    if step is None:
+        return reading_name(field)
+    name = CONDUCTOR_NAMES.get(field) or reading_name(field)
+    return f"{'Step' if capital else 'step'} {step} {name}"
 
 
 def outlet_name(oid, label: str | None = None, kind: str | None = None) -> str:
@@ -136,3 +180,9 @@ def fed_from(spur_from) -> str:
 
 def verdict_word(verdict: str | None) -> str:
     return VERDICT_WORDS.get(verdict or "incomplete", str(verdict))
+
+
+def worst_verdict(verdicts) -> str | None:
+    """The worst of several verdicts (``VERDICT_ORDER``); None when there are none."""
+    found = set(verdicts)
+    return next((v for v in VERDICT_ORDER if v in found), None)

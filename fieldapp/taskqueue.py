@@ -46,19 +46,9 @@ def build(flask_app: Flask, connector) -> procrastinate.App:
 
     @papp.task(name=TASK, queue=QUEUE)
     def diagnose_circuit(circuit_id: int) -> None:
-        from fieldapp import records
-        from fieldapp.extensions import db
-        from fieldapp.models import Circuit
+        from fieldapp.background import diagnose_one
 
-        with flask_app.app_context():
-            try:
-                circuit = db.session.get(Circuit, circuit_id)
-                if circuit is not None:
-                    _, problem = records.diagnose_circuit(circuit)
-                    if problem:
-                        log.info("circuit %s not diagnosed: %s", circuit_id, problem)
-            finally:
-                db.session.remove()
+        diagnose_one(flask_app, circuit_id)
 
     return papp
 

@@ -25,8 +25,8 @@ from fieldapp.api.views import _circuit, _error, api_login
 from fieldapp.auth.roles import TESTING_ROLES
 from fieldapp.extensions import db
 from fieldapp.models import STEPS, Circuit, Outlet
+from fieldapp.ringtest.errors import outlet_error
 from fieldapp.web import actor
-from ringmath.record import parse_outlet
 
 #: ringmath's outlet paths -> the field of the request they concern
 OUTLET_PATHS = {"outlet.fuse_a": "fuse_a", "outlet.kind": "kind", "outlet.label": "label",
@@ -57,17 +57,9 @@ def _ready(circuit: Circuit, *, readings: bool = True):
 
 
 def _outlet_problem(values: dict):
-    """ringmath's own outlet rules (FCU fuse ratings, spur sizes): (field, message) or None."""
-    doc = {"id": "new", "kind": values["kind"], "fuse_a": values["fuse_a"],
-           "spur_from": values["spur_from_key"], "spur_csa_mm2": values["spur_csa_mm2"],
-           "spur_cpc_csa_mm2": values["spur_cpc_csa_mm2"], "label": values["label"]}
-    try:
-        parse_outlet(doc, "outlet")
-    except ValueError as error:
-        path = getattr(error, "path", None) or str(error).partition(": ")[0]
-        message = str(error).partition(": ")[2] or str(error)
-        return OUTLET_PATHS.get(path, "label"), f"{message[0].upper()}{message[1:]}."
-    return None
+    """ringmath's own outlet rules (FCU fuse ratings, spur sizes): (field, message) or None,
+    worded as the outlet form words them."""
+    return outlet_error(values, OUTLET_PATHS)
 
 
 def _outlet_reply(outlet: Outlet, client_id: str | None, created: bool) -> dict:

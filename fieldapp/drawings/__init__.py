@@ -15,7 +15,7 @@ drawing), ``ring`` (the ring picture), ``plot`` (the readings plot).
 """
 
 from fieldapp.drawings.connections import connection_diagram
-from fieldapp.drawings.layout import order_known, point_names, point_numbers, ring_positions
+from fieldapp.drawings.layout import order_known, point_names, ring_positions
 from fieldapp.drawings.plot import readings_plot
 from fieldapp.drawings.ring import FAULT_WORDS, ring_picture
 from fieldapp.drawings.svg import ALERT, BAND_FILL, CORES, INK, MUTED, WIDTH
@@ -23,6 +23,6 @@ from fieldapp.labels import KIND_WORDS
 
 __all__ = [
     "ALERT", "BAND_FILL", "CORES", "FAULT_WORDS", "INK", "KIND_WORDS", "MUTED", "WIDTH",
-    "connection_diagram", "order_known", "point_names", "point_numbers", "readings_plot",
+    "connection_diagram", "order_known", "point_names", "readings_plot",
     "ring_picture", "ring_positions",
 ]

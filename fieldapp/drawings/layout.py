@@ -40,13 +40,6 @@ def point_names(diagnosis: dict) -> dict[str, str]:
     return _number_map(*_points_in_order(diagnosis))
 
 
-def point_numbers(diagnosis: dict) -> dict[str, int]:
-    """Points numbered 1, 2, ... in ring order, then spurs (kept for the job sheet's "No."
-    column until it prints ``point_names``; the drawings themselves carry the names)."""
-    ring, spurs = _points_in_order(diagnosis)
-    return {str(p.get("id")): i for i, p in enumerate(ring + spurs, start=1)}
-
-
 def order_known(diagnosis: dict) -> bool:
     """True when the readings place the ring points (any point has a ``position``); else
     the drawings show them in the order they were entered."""

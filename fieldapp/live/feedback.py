@@ -7,6 +7,7 @@ them in words for the live tests page, Results, the review page and the printed 
 
 from __future__ import annotations
 
+from fieldapp import labels
 from fieldapp.live.values import TAKEN_AT_LABELS
 
 #: The findings of the live tests and the dead tests beside the ring test (ringmath codes).
@@ -27,17 +28,14 @@ SUGGEST_RING, SUGGEST_SPURS = 2, 2
 
 
 def ohm(value) -> str:
-    """A resistance for display: "0.66", "OL" or a dash."""
-    if value is None:
-        return DASH
-    if value == "OL" or (isinstance(value, float) and value == float("inf")):
-        return "OL"
-    return f"{float(value):.2f}"
+    """A resistance for display: "0.66", "OL" or a dash (the app's one formatter, without the
+    unit: the words around it say Ω)."""
+    return labels.ohm(value, unit=False)
 
 
 def result_word(ok) -> str:
     """ringmath's True / False / None as a word that reads in black and white."""
-    return {True: "pass", False: "FAIL"}.get(ok, "not proved")
+    return labels.result_word(ok)
 
 
 def _points(diagnosis: dict | None) -> dict[str, dict]:
@@ -145,13 +143,15 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
         if outlet.get("taken_at"):
             notes.append("readings " + TAKEN_AT_LABELS.get(outlet["taken_at"],
                                                            outlet["taken_at"]))
-        for name, words in (("ln_terminals", "L–N"), ("le_terminals", "L–CPC")):
+        for name in ("ln_terminals", "le_terminals"):
             if outlet.get(name) is not None:
-                notes.append(f"{words} re-measured at the terminals {ohm(outlet[name])} Ω")
+                notes.append(f"{labels.reading_name(name)} {ohm(outlet[name])} Ω")
         notes += [f.get("code", "").replace("_", " ") for f in _findings_for(diagnosis, key)]
         measured = outlet.get("zs_measured")
         rows.append({
             "id": key, "label": outlet.get("label") or key,
+            # the one name each outlet has everywhere (fieldapp/labels.py): "c · Kitchen"
+            "name": labels.outlet_name(key, outlet.get("label"), outlet.get("kind")),
             "r1r2": ohm(point.get("r1r2_ohm")),
             "estimated": bool(point.get("r1r2_estimated")),
             "predicted": ohm(point.get("zs_ohm")),
@@ -196,7 +196,7 @@ def live_summary(record: dict, diagnosis: dict | None) -> dict:
         },
         "findings": [f for f in (diagnosis or {}).get("findings") or []
                      if f.get("code") in LIVE_CODES],
-        "marginal": [r["label"] for r in rows if r["marginal"]],
-        "estimated": [r["label"] for r in rows if r["estimated"]],
+        "marginal": [r["name"] for r in rows if r["marginal"]],
+        "estimated": [r["name"] for r in rows if r["estimated"]],
         "caution": LIVE_CAUTION,
     }

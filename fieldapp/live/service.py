@@ -3,15 +3,12 @@ the app's one save path (fieldapp.readings.save_reading), with messages naming t
 
 from __future__ import annotations
 
-from fieldapp import changes, readings
+from fieldapp import changes, labels, readings
 from fieldapp.models import Circuit, Outlet
 
-#: The reading names the user sees, per field.
-READING_NAMES = {
-    "zs_measured": "Measured Zs",
-    "ln_terminals": "L–N re-measured at the terminals",
-    "le_terminals": "L–CPC re-measured at the terminals",
-}
+#: The reading names the user sees, per field, as a sentence starts (fieldapp/labels.py).
+READING_NAMES = {field: labels.reading_name(field)[:1].upper() + labels.reading_name(field)[1:]
+                 for field in changes.LIVE_OUTLET_READINGS}
 
 
 def message(field: str, kind: str, raw) -> str:

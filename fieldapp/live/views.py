@@ -14,7 +14,6 @@ from flask_login import login_required
 from fieldapp import changes, labels
 from fieldapp.auth.roles import TESTING_ROLES, can_test, role_required
 from fieldapp.extensions import db
-from fieldapp.labels import KIND_LABELS
 from fieldapp.live import bp
 from fieldapp.live import feedback as lf
 from fieldapp.live.forms import LiveCircuitForm, TakenAtForm, schedule_data
@@ -26,7 +25,6 @@ from fieldapp.records import circuit_record, diagnose_circuit
 from fieldapp.ringtest.answer import leading as leading_of
 from fieldapp.ringtest.forms import ReadingForm
 from fieldapp.web import actor, get_or_404
-from ringmath.messages import CAUTIONS
 
 SHORT = {"safety": "Safety", "e2e": "Step 1", "ln": "Step 2", "le": "Step 3",
          "live": "Live", "results": "Results"}
@@ -67,12 +65,12 @@ def _cards(circuit: Circuit, diagnosis: dict | None, bad: ReadingForm | None) ->
         forms = {f: _reading_form(f, outlet.key) for f in changes.LIVE_OUTLET_READINGS}
         if bad is not None and bad.outlet.data == outlet.key and bad.field.data in forms:
             forms[bad.field.data] = bad
-        hint = [KIND_LABELS.get(outlet.kind, outlet.kind)]
+        hint = [labels.kind_label(outlet.kind)]
         if outlet.spur_from_key:
-            hint.append(f"spur from {outlet.spur_from_key}")
+            hint.append(labels.fed_from(outlet.spur_from_key))
         cards.append({
             "outlet": outlet, "key": outlet.key,
-            "title": f"{outlet.key} · {outlet.label or KIND_LABELS.get(outlet.kind, '')}",
+            "title": labels.outlet_name(outlet.key, outlet.label, outlet.kind),
             "hint": ", ".join(hint), "suggested": suggested.get(outlet.key),
             "anchor": anchor_for("zs_measured", outlet.key),
             "feedback": lf.zs_feedback(diagnosis, outlet.key), "forms": forms,
@@ -98,7 +96,7 @@ def render_page(circuit: Circuit, *, bad: ReadingForm | None = None,
         leading=leading_of(diagnosis), names=labels.outlet_names(diagnosis),
         diagnosis_error=diagnosis_error, writable=_writable(circuit),
         safe=changes.safety_confirmed(circuit), reading_names=READING_NAMES,
-        taken_words=TAKEN_AT_LABELS, cautions=(diagnosis or {}).get("cautions") or CAUTIONS,
+        taken_words=TAKEN_AT_LABELS, cautions=(diagnosis or {}).get("cautions") or labels.CAUTIONS,
         focus=bad and anchor_for(bad.field.data, bad.outlet.data or ""),
     ), status
 
@@ -137,15 +135,16 @@ def save_reading(circuit_id: int):
         db.session.rollback()
         form.value.errors = [bad.message]
         return render_page(circuit, bad=form, status=422)
-    where = f"{outlet.key} ({outlet.label})"
-    name = READING_NAMES[field]
+    where = labels.outlet_name(outlet.key, outlet.label, outlet.kind)
+    name = labels.reading_name(field)
     if result.duplicate:
-        flash(f"Already saved: {name} at {where} = {labels.ohm(result.new)}.", "info")
+        flash(f"Already saved: {READING_NAMES[field]} at {where} = {labels.ohm(result.new)}.",
+              "info")
     elif result.old is not None and result.old != result.new:
-        flash(f"Corrected {name.lower()} at {where}: {labels.ohm(result.old)} → "
+        flash(f"Corrected {name} at {where}: {labels.ohm(result.old)} → "
               f"{labels.ohm(result.new)} (the old value stays in the history).", "ok")
     else:
-        flash(f"Saved {name.lower()} at {where}: {labels.ohm(result.new)}.", "ok")
+        flash(f"Saved {name} at {where}: {labels.ohm(result.new)}.", "ok")
     return redirect(url_for("live.page", circuit_id=circuit.id,
                             _anchor=anchor_for("zs_measured", outlet.key)))
 

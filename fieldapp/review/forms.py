@@ -6,15 +6,12 @@ from flask_wtf import FlaskForm
 from wtforms import SelectField, StringField, SubmitField, TextAreaField
 from wtforms.validators import DataRequired, Length, Optional
 
+from fieldapp.labels import JOB_STATUS_WORDS
 from fieldapp.models import JOB_STATUSES
 from fieldapp.web import options
 
-STATUS_LABELS = {
-    "in_progress": "in progress",
-    "submitted": "submitted",
-    "returned": "returned",
-    "approved": "approved",
-}
+#: The job statuses in words: the app's one set (fieldapp/labels.py).
+STATUS_LABELS = JOB_STATUS_WORDS
 
 
 class FilterForm(FlaskForm):

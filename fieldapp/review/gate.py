@@ -15,18 +15,18 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from fieldapp import labels
 from fieldapp.labels import outlet_name
 
 #: Problem kinds, in the order they are listed for a circuit.
 KINDS = ("not_assessed", "safety", "steps_missing", "zs_fail", "zs_unproved", "verdict",
          "finding")
-#: Verdict words (ringmath's verdicts, CONTRACT.md).
-VERDICT_WORDS = {"satisfactory": "Satisfactory", "investigate": "Investigate",
-                 "retest": "Re-test", "incomplete": "Incomplete"}
+#: Verdict words: the app's one set (fieldapp/labels.py, ringmath's own).
+VERDICT_WORDS = labels.VERDICT_WORDS
 SAFETY_CHECKS = (("isolated", "isolated"), ("locked_off", "locked off"),
                  ("proved_dead", "proved dead"))
-STEP1_WORDS = {"r1": "r1 (line)", "rn": "rn (neutral)", "r2": "r2 (cpc)"}
-STEP_WORDS = {"ln": "Step 2 L–N", "le": "Step 3 L–CPC"}
+STEP1_WORDS = labels.CONDUCTOR_NAMES
+STEP_WORDS = {field: labels.step_reading(field) for field in ("ln", "le")}
 #: Findings already said by a Zs problem.
 ZS_CODES = ("zs_over_limit",)
 #: Outlets named in full in one problem before "and N more".
@@ -60,7 +60,7 @@ def _listed(names: list[str]) -> str:
 
 
 def _ohm(value) -> str:
-    return "OL" if value == "OL" else f"{float(value):.2f} Ω"
+    return labels.ohm(value)
 
 
 def _safety(rec: dict) -> list[Problem]:
@@ -109,8 +109,7 @@ def _zs(rec: dict, diagnosis: dict, names: dict[str, str]) -> list[Problem]:
                                                f"{_ohm(p['zs_ohm'])} against "
                                                f"{_ohm(p['zs_max_ohm'])}."))
     summary = diagnosis.get("circuit") or {}
-    if not points and summary.get("zs_ohm") is not None and summary.get(
-            "zs_max_ohm") is not None and summary["zs_ohm"] > summary["zs_max_ohm"]:
+    if not points and summary.get("zs_ok") is False:  # the diagnosis' own result
         problems.append(Problem("zs_fail", f"Zs over the limit for the circuit: "
                                            f"{_ohm(summary['zs_ohm'])} against "
                                            f"{_ohm(summary['zs_max_ohm'])}."))
@@ -145,12 +144,12 @@ def _verdict(diagnosis: dict, listed: list[Problem]) -> list[Problem]:
     if verdict == "incomplete" and any(p.kind == "steps_missing" for p in listed):
         return []  # the missing steps say it already
     word = VERDICT_WORDS.get(verdict, str(verdict))
-    problems = [Problem("verdict", f"Assessment: {word}, not Satisfactory. "
+    problems = [Problem("verdict", f"Assessment: {word}, not {VERDICT_WORDS['satisfactory']}. "
                                    f"{diagnosis.get('summary') or ''}".strip())]
     for finding in diagnosis.get("findings") or []:
         if finding.get("severity") in ("fault", "warning") and finding.get(
                 "code") not in ZS_CODES:
-            label = "Fault" if finding["severity"] == "fault" else "Check"
+            label = labels.severity_word(finding["severity"])
             problems.append(Problem("finding", f"{label}: {finding.get('message') or ''}"))
     return problems
 

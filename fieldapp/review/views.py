@@ -81,14 +81,21 @@ def job(job_id: int):
     return _review_page(get_or_404(Job, job_id))
 
 
+def _not_in(job: Job, allowed_from: str, action: str):
+    """The redirect back to the job, with why, when it is not in ``allowed_from``; else None."""
+    if job.status == allowed_from:
+        return None
+    flash(f"Job {job.reference} is {STATUS_LABELS[job.status]}: nothing to {action}.", "error")
+    return redirect(url_for("review.job", job_id=job.id))
+
+
 def _decide(job_id: int, form_cls, form_name: str, allowed_from: str, values, done: str):
     """One review decision: the form valid, the job in ``allowed_from``, the values logged."""
     job = get_or_404(Job, job_id)
     form = form_cls()
-    if job.status != allowed_from:
-        flash(f"Job {job.reference} is {STATUS_LABELS[job.status]}: nothing to "
-              f"{form.submit.label.text.lower()}.", "error")
-        return redirect(url_for("review.job", job_id=job.id))
+    refused = _not_in(job, allowed_from, form.submit.label.text.lower())
+    if refused is not None:
+        return refused
     if not form.validate_on_submit():
         return _review_page(job, 400, **{form_name: form})
     changes.update(job, values(form, utcnow()), actor())
@@ -103,10 +110,9 @@ def approve(job_id: int):
     """Approve a submitted job; one with problems (fieldapp/review/gate.py) only with a reason."""
     job = get_or_404(Job, job_id)
     form = ApproveForm()
-    if job.status != "submitted":
-        flash(f"Job {job.reference} is {STATUS_LABELS[job.status]}: nothing to approve.",
-              "error")
-        return redirect(url_for("review.job", job_id=job.id))
+    refused = _not_in(job, "submitted", "approve")
+    if refused is not None:
+        return refused
     if not form.validate_on_submit():
         return _review_page(job, 400, approve_form=form)
     now = utcnow()

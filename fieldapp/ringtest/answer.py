@@ -11,7 +11,7 @@ Two presentation rules, pure functions over ``diagnose`` output:
   that fits about as well. Checks without a confidence (Zs, rules) are facts, not rival
   explanations, and stay where they are.
 
-The circuit-level pass/fail is ``diagnosis["circuit"]["zs_ok"]`` where the core gives it;
+The circuit-level pass/fail is ``diagnosis["circuit"]["zs_ok"]`` (None without a diagnosis);
 point verdicts (``points[].ok``) are ringmath's own. Nothing is compared here.
 """
 
@@ -19,8 +19,11 @@ from __future__ import annotations
 
 from fieldapp.labels import SEVERITY_WORDS, ohm, outlet_names, verdict_word
 
-#: Two fault explanations whose confidences are within this factor "fit about as well".
-SIMILAR_LIKELIHOOD = 2.0
+#: Two fault explanations whose confidences are within this factor "fit about as well": odds
+#: below about 3.2 to 1 are "not worth more than a bare mention" on Jeffreys' scale of
+#: evidence (H. Jeffreys, Theory of Probability, 3rd ed. 1961, Appendix B), so the readings do
+#: not decide between them and the more dangerous is listed first.
+SIMILAR_LIKELIHOOD = 3.2
 #: Danger rank of each fault code (higher first), common practice of the trade: a missing
 #: earth path leaves no fault protection at all; reversed polarity leaves parts live when
 #: switched off; a broken ring conductor leaves a
@@ -85,11 +88,7 @@ def zs_state(diagnosis: dict) -> dict:
     failing = [p for p in points if p.get("ok") is False]
     unproved = [p for p in failing if p.get("le_ohm") == "OL" or p.get("zs_ohm") is None]
     over = [p for p in failing if p not in unproved]
-    if "zs_ok" in circuit:
-        ok = circuit["zs_ok"]
-    else:  # a core without the circuit-level result: the points' own verdicts
-        ok = False if failing else (None if any(p.get("ok") is None for p in points)
-                                    else (True if points else None))
+    ok = circuit.get("zs_ok")  # the diagnosis' own circuit result, never re-derived here
     names = outlet_names(points)
     lines = []
     if unproved:

@@ -35,6 +35,21 @@ def outlet_name(oid, label: str | None = None, kind: str | None = None) -> str:
     return labels.outlet_name(oid, label, kind)
 
 
+@bp.app_template_global("severity_word")
+def severity_word(severity: str | None) -> str:
+    return labels.severity_word(severity)
+
+
+@bp.app_template_global("job_status_word")
+def job_status_word(status: str | None, capital: bool = False) -> str:
+    return labels.job_status_word(status, capital)
+
+
+@bp.app_template_global("fed_from")
+def fed_from(spur_from) -> str:
+    return labels.fed_from(spur_from)
+
+
 @bp.app_template_global("term")
 def term(word: str, shown: str | None = None) -> Markup:
     """A trade term that opens its one-line explanation on tap (no script, no tooltip)."""
@@ -56,7 +71,7 @@ def circuit_verdict(circuit) -> dict:
         log.exception("diagnosis failed for circuit %s", circuit.id)
         diagnosis, reason = None, "diagnosis failed"
     if not diagnosis:
-        return {"verdict": "none", "words": "Not assessed", "reason": reason}
+        return {"verdict": "none", "words": labels.NOT_ASSESSED, "reason": reason}
     verdict = diagnosis.get("verdict") or "incomplete"
     return {"verdict": verdict, "words": labels.verdict_word(verdict), "reason": None}
 

@@ -5,256 +5,50 @@ Inputs: a job document in the ``ringtest/1`` format (what the JSON export gives)
 be assessed, with the reason in ``problems``), and the people and dates of the job (who tested,
 submitted, reviewed, approved). No models, no Flask, no numpy: the printed sheet
 (fieldapp/sheets/pdf.py) and the supervisor's review page both show this context.
+
+The pieces: ``words.py`` (the sheet's words and print formats), ``circuit.py`` (one circuit's
+details, schedule, findings and Zs result); this module assembles the sheet and keeps every
+name at its old import path.
 """
 
 from __future__ import annotations
 
-import base64
 import datetime as dt
-import math
-import re
 
 from markupsafe import Markup
 
-from fieldapp.drawings import KIND_WORDS, point_names, ring_picture
-from fieldapp.labels import outlet_name
+from fieldapp import labels
+from fieldapp.drawings import ring_picture
 from fieldapp.live.feedback import live_summary
-from ringmath.messages import CAUTIONS
-
-VERDICT_WORDS = {
-    "satisfactory": "Satisfactory",
-    "investigate": "Investigate",
-    "incomplete": "Incomplete",
-}
-#: The job's overall verdict is its worst circuit's, in this order (worst first).
-VERDICT_ORDER = ("investigate", "incomplete", "satisfactory")
-STATUS_WORDS = {
-    "in_progress": "In progress",
-    "submitted": "Submitted for review",
-    "returned": "Returned to the tester",
-    "approved": "Approved",
-}
-READING_STATUS_WORDS = {
-    "ok": "in band",
-    "high": "HIGH",
-    "low": "LOW",
-    "open": "OPEN",
-    "pending": "not taken",
-}
-#: A reading that was taken but has nothing to be checked against yet (its band needs a step 1
-#: reading that is missing or OL).
-NO_BAND = "no band"
-#: A Zs that cannot be judged yet (a reading missing or OL), in words for a black-and-white copy.
-NOT_PROVED = "not proved"
-#: What a Zs "pass" does not say when the circuit as a whole is not satisfactory.
-ZS_ONLY = {
-    "investigate": "The Zs result covers the readings as taken only: the circuit is not "
-                   "satisfactory until the findings below are resolved and the steps repeated.",
-    "incomplete": "The Zs result covers the readings taken so far only: the test is not "
-                  "complete.",
-}
-STEP1 = (("r1", "r1 (line)"), ("rn", "rn (neutral)"), ("r2", "r2 (cpc)"))
-DASH = "—"
-
-
-def ohm(value) -> str:
-    """A computed resistance for print: two decimals, "OL", or a dash when unknown."""
-    if value is None:
-        return DASH
-    if value == "OL" or (isinstance(value, float) and math.isinf(value)):
-        return "OL"
-    return f"{float(value):.2f}"
-
-
-def recorded(value) -> str:
-    """A reading as it was recorded: at least two decimals, never rounded away."""
-    if value is None:
-        return DASH
-    if value == "OL":
-        return "OL"
-    text = f"{float(value):.2f}"
-    return text if float(text) == float(value) else repr(float(value))
-
-
-def when(value) -> str:
-    """A date or time (object or ISO text) for print; a dash when absent."""
-    if value in (None, ""):
-        return DASH
-    if isinstance(value, str):
-        try:
-            value = dt.datetime.fromisoformat(value) if "T" in value else dt.date.fromisoformat(
-                value)
-        except ValueError:
-            return value
-    if isinstance(value, dt.datetime):
-        return value.strftime("%d %b %Y %H:%M UTC")
-    return value.strftime("%d %b %Y")
-
-
-def verdict_of(diagnoses) -> str | None:
-    """The job's verdict: the worst of its circuits' (a circuit not assessed is incomplete)."""
-    verdicts = {d["verdict"] if d else "incomplete" for d in diagnoses}
-    return next((v for v in VERDICT_ORDER if v in verdicts), None)
-
-
-def _pass_word(ok) -> str:
-    return {True: "pass", False: "FAIL"}.get(ok, NOT_PROVED)
-
-
-def _yes(flag) -> str:
-    return "yes" if flag else "NO"
-
-
-def _device(circuit: dict) -> str:
-    ocpd = circuit.get("ocpd") or {}
-    curve = f" type {ocpd['curve']}" if ocpd.get("curve") else ""
-    return f"{ocpd.get('standard', '')}{curve} {quantity(ocpd.get('rating_a'))} A".strip()
-
-
-def quantity(value) -> str:
-    """A plain quantity without trailing zeros (32.0 -> "32", 2.5 -> "2.5"); dash if None."""
-    return DASH if value is None else f"{float(value):g}"
-
-
-def _details(circuit: dict) -> list[tuple[str, str]]:
-    rcd = circuit.get("rcd")
-    rcd_text = (f"{quantity(rcd['rated_ma'])} mA" + (f" type {rcd['type']}" if rcd.get("type")
-                                                      else "")) if rcd else "none recorded"
-    safety = circuit.get("safety")
-    ze = circuit.get("ze_ohm")
-    return [
-        ("Protective device (OCPD)", _device(circuit)),
-        ("RCD", rcd_text),
-        ("Live / cpc csa", f"{quantity(circuit.get('live_csa_mm2'))} / "
-                           f"{quantity(circuit.get('cpc_csa_mm2'))} mm²"),
-        ("Ze", f"{ohm(ze)} Ω ({circuit.get('ze_source') or 'measured'})" if ze is not None
-         else "not recorded"),
-        ("Earthing", circuit.get("earthing") or "not recorded"),
-        ("Estimated cable length", f"{quantity(circuit.get('cable_length_m'))} m"
-         if circuit.get("cable_length_m") is not None else "not recorded"),
-        ("Isolated / locked off / proved dead",
-         " / ".join(_yes(safety.get(k)) for k in ("isolated", "locked_off", "proved_dead"))
-         if safety is not None else "not recorded"),
-        ("Safety checks confirmed", " ".join(
-            x for x in ((safety or {}).get("confirmed_by"), when(safety.get("confirmed_at"))
-                        if (safety or {}).get("confirmed_at") else None) if x) or DASH),
-    ]
-
-
-def _reading_status(diagnosis: dict) -> dict[tuple, dict]:
-    return {(r.get("outlet"), r.get("step")): r for r in diagnosis.get("readings") or []}
-
-
-def _status_word(status: dict | None) -> str:
-    status = status or {}
-    if status.get("status") == "pending" and status.get("value") is not None:
-        return NO_BAND
-    return READING_STATUS_WORDS.get(status.get("status"), "")
-
-
-def _names(rec: dict, diagnosis: dict) -> dict[str, str]:
-    """Each outlet's short name: the one it carries in the ring picture when there is a
-    diagnosis (fieldapp.drawings.point_names), else its id, as every screen names it."""
-    names = point_names(diagnosis) if diagnosis else {}
-    for outlet in rec.get("outlets") or []:
-        names.setdefault(str(outlet["id"]), str(outlet["id"]))
-    return names
-
-
-def _named_in(diagnosis: dict) -> dict[str, str]:
-    """Per outlet id, the most serious fault or warning finding that names it ("FAULT",
-    "WARNING"), so the schedule can point at the findings."""
-    named: dict[str, str] = {}
-    for severity in ("warning", "fault"):
-        for finding in diagnosis.get("findings") or []:
-            if finding.get("severity") == severity:
-                named.update({str(o): severity.upper() for o in finding.get("outlets") or []})
-    return named
-
-
-def _outlet_rows(rec: dict, diagnosis: dict) -> list[dict]:
-    points = {p.get("id"): p for p in diagnosis.get("points") or []}
-    named = _named_in(diagnosis)
-    checks = _reading_status(diagnosis)
-    labels = {o["id"]: o.get("label") or o["id"] for o in rec.get("outlets") or []}
-    names = _names(rec, diagnosis)
-    rows = []
-    for outlet in rec.get("outlets") or []:
-        point = points.get(outlet["id"], {})
-        fed = outlet.get("spur_from")
-        rows.append({
-            "n": names[str(outlet["id"])],
-            "id": outlet["id"],
-            "label": outlet.get("label") or "",
-            "kind": KIND_WORDS.get(outlet.get("kind"), outlet.get("kind") or ""),
-            "fuse": f"{quantity(outlet['fuse_a'])} A" if outlet.get("fuse_a") else "",
-            "fed": f"spur from {outlet_name(names.get(str(fed), fed), labels.get(fed))}" if fed
-                   else "ring",
-            "ln": recorded(outlet.get("ln")),
-            "ln_check": _status_word(checks.get((outlet["id"], "ln"))),
-            "le": recorded(outlet.get("le")),
-            "le_check": _status_word(checks.get((outlet["id"], "le"))),
-            "r1r2": ohm(point.get("r1r2_ohm")),
-            "zs": ohm(point.get("zs_ohm")),
-            "zs_max": ohm(point.get("zs_max_ohm")),
-            "result": _pass_word(point.get("ok")),
-            "failed": point.get("ok") is False,
-            "named": named.get(str(outlet["id"]), ""),
-        })
-    return rows
-
-
-def _findings(diagnosis: dict, names: dict[str, str], labels: dict) -> list[dict]:
-    """The findings in words; the outlets they name as the schedule and the ring picture do
-    ("c · Kitchen")."""
-    def outlet(oid) -> str:
-        return outlet_name(names.get(str(oid), oid), labels.get(str(oid)))
-
-    return [{
-        "severity": (f.get("severity") or "").upper(),
-        "message": f.get("message") or "",
-        "next_check": f.get("next_check") or "",
-        "outlets": ", ".join(outlet(o) for o in f.get("outlets") or []),
-    } for f in diagnosis.get("findings") or []]
-
-
-def _zs_result(summary: dict, rows: list[dict]) -> str:
-    """The circuit's Zs result: FAIL when any outlet or the circuit's figure is over its limit,
-    pass when the figure is within it and every outlet passed, else not proved."""
-    ok = None
-    if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
-        ok = summary["zs_ohm"] <= summary["zs_max_ohm"]
-    if ok is False or any(row["failed"] for row in rows):
-        return _pass_word(False)
-    if ok and all(row["result"] == _pass_word(True) for row in rows):
-        return _pass_word(True)
-    return NOT_PROVED
-
-
-def _zs_line(summary: dict, rows: list[dict]) -> str:
-    """The Zs result in one phrase: the circuit's figure against its limit when known, and the
-    outlets over their limit (or open) by number."""
-    parts = []
-    if summary.get("zs_ohm") is not None and summary.get("zs_max_ohm") is not None:
-        parts.append(f"highest Zs {ohm(summary['zs_ohm'])} Ω against a limit of "
-                     f"{ohm(summary['zs_max_ohm'])} Ω")
-    failing = [outlet_name(row["n"], row["label"]) for row in rows if row["failed"]]
-    if failing:
-        parts.append("over the limit or open at " + ", ".join(failing))
-    if not parts:
-        parts.append("Zs cannot be worked out until every step 3 reading is in")
-    return "; ".join(parts)
-
-
-#: Tooltips of the screen's drawing: nothing to show on paper.
-_TITLE = re.compile(r"<title>.*?</title>", re.S)
-
-
-def sketch_uri(svg: str) -> str:
-    """The printed ring picture as an image (a data URI, tooltips left out): the layout engine
-    then neither styles nor lays out each of its shapes as part of the page."""
-    light = _TITLE.sub("", str(svg))
-    return "data:image/svg+xml;base64," + base64.b64encode(light.encode()).decode("ascii")
+from fieldapp.sheets.circuit import (  # noqa: F401  (old import paths)
+    _details,
+    _device,
+    _findings,
+    _names,
+    _outlet_rows,
+    _reading_status,
+    _status_word,
+    _zs_line,
+    _zs_result,
+    sketch_uri,
+)
+from fieldapp.sheets.words import (  # noqa: F401  (old import paths)
+    DASH,
+    NO_BAND,
+    NOT_PROVED,
+    READING_STATUS_WORDS,
+    STATUS_WORDS,
+    STEP1,
+    VERDICT_ORDER,
+    VERDICT_WORDS,
+    ZS_ONLY,
+    _pass_word,
+    ohm,
+    quantity,
+    recorded,
+    verdict_of,
+    when,
+)
 
 
 def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str | None,
@@ -291,10 +85,10 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         "zs_tabulated": ohm(summary.get("zs_tabulated_ohm")),
         "device": summary.get("device") or _device(circuit),
         "limit_source": summary.get("limit_source") or "",
-        "result": _zs_result(summary, ctx["outlets"]),
+        "result": _zs_result(summary),
     }
     ctx["zs_line"] = _zs_line(summary, ctx["outlets"])
-    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), "Not assessed")
+    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict"), labels.NOT_ASSESSED)
     ctx["summary_sentence"] = diagnosis.get("summary") or problem or ""
     ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict"), "")
                       if ctx["summary"]["result"] == _pass_word(True) else "")
@@ -319,7 +113,7 @@ def _cautions(diagnoses) -> list[str]:
         for text in (d or {}).get("cautions") or []:
             if text not in seen:
                 seen.append(text)
-    return seen or list(CAUTIONS)
+    return seen or list(labels.CAUTIONS)
 
 
 def _instrument(people: dict) -> str:
@@ -387,7 +181,7 @@ def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *
         ],
         "status": STATUS_WORDS.get(people.get("status"), people.get("status") or ""),
         "review_comment": people.get("review_comment") or "",
-        "verdict": VERDICT_WORDS.get(verdict, "Not assessed"),
+        "verdict": VERDICT_WORDS.get(verdict, labels.NOT_ASSESSED),
         "circuits": [_circuit_context(i, rec, d, p, drawing)
                      for i, (rec, d, p) in enumerate(zip(records, diagnoses, problems,
                                                          strict=True))],
@@ -401,5 +195,7 @@ def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *
              "date": _day(people.get("approved_at") or people.get("reviewed_at"))},
         ],
         "cautions": _cautions(diagnoses),
+        # the readings' names, as every screen names them (fieldapp/labels.py)
+        "reading_words": {field: labels.step_reading(field) for field in ("ln", "le")},
         "generated": when(generated_at or dt.datetime.now(dt.UTC).replace(tzinfo=None)),
     }

@@ -162,6 +162,7 @@ def test_a_correction_waiting_offline_is_judged_on_its_own_value(apprentice, liv
     context.set_offline(True)
     try:
         enter(page, "r-ln-a", "0.40")
+        expect(status(page)).to_contain_text("Saved on this phone, will send when back online")
         page.reload()
         fb = card(page, "r-ln-a").locator("[data-feedback]")
         # (0.52 + 0.52) / 4 = 0.26 Ω, ±0.05 Ω (common practice): 0.40 is above the band

@@ -165,7 +165,8 @@ def test_review_page_leads_with_the_answer_and_reaches_the_decision(supervisor, 
     page.get_by_role("link", name="Approve or return ↓").tap()
     expect(page.get_by_role("button", name="Approve job")).to_be_in_viewport()
     # a reading's history, one tap from its line
-    page.get_by_role("link", name="history of L–N at Landing").tap()
+    # the one outlet name ("a · Landing") and the one reading name, as everywhere
+    page.get_by_role("link", name=re.compile(r"^history of L–N.* at .*Landing$")).tap()
     expect(page.get_by_role("heading", name="History")).to_be_visible()
     expect(page.locator(".history-row")).to_have_count(1)
     expect(page.locator(".history-row")).to_contain_text("0.26")

@@ -62,6 +62,29 @@ def test_verdict_words_are_the_contract_words():
     assert "Not finished" not in labels.VERDICT_WORDS.values()
 
 
+@pytest.mark.parametrize(("verdicts", "worst"), [
+    (["satisfactory", "retest"], "retest"),
+    (["retest", "investigate", "satisfactory"], "investigate"),
+    (["incomplete", "retest"], "retest"),
+    (["satisfactory", "incomplete"], "incomplete"),
+    (["satisfactory"], "satisfactory"),
+    ([], None),
+])
+def test_a_jobs_verdict_is_its_worst_circuits_and_knows_every_verdict(verdicts, worst):
+    # every verdict ringmath can give has a place in the order (a re-test circuit once made
+    # the job sheet say "Not assessed")
+    assert set(labels.VERDICT_ORDER) == set(messages.VERDICT_WORDS)
+    assert labels.worst_verdict(verdicts) == worst
+
+
+def test_step_reading_names_come_from_the_one_table():
+    assert labels.step_reading("ln") == "Step 2 L–N"
+    assert labels.step_reading("r2", capital=False) == "step 1 r2 (cpc)"
+    assert labels.reading_name("zs_measured", with_step=True) == "measured Zs"
+    assert labels.result_word(True) == "pass" and labels.result_word(False) == "FAIL"
+    assert labels.result_word(None) == "not proved"
+
+
 def test_cautions_are_the_core_cautions():
     assert labels.CAUTIONS == tuple(messages.CAUTIONS)
 

@@ -240,6 +240,21 @@ def test_zs_over_the_limit_prints_fail_in_words():
         failing + circuits_failing)
 
 
+def test_the_circuits_zs_result_is_the_diagnosis_own():
+    # A measured Zs of 5.00 Ω at one outlet is far over 1.10 Ω, the measured-value limit of a
+    # 32 A type B breaker (BS 7671:2018 Table 41.3 1.37 Ω x 80 %, IET On-Site Guide rule of
+    # thumb): the diagnosis fails the circuit (circuit.zs_ok) and the sheet says so in words,
+    # though every predicted Zs on it is within the limit.
+    doc = as_job_document(HANDMADE)
+    doc["circuits"][0]["outlets"][0]["zs_measured"] = 5.0
+    diagnoses = [diagnose(rec) for rec in doc["circuits"]]
+    assert diagnoses[0]["circuit"]["zs_ok"] is False
+    ctx = sheet_context(doc, diagnoses, PEOPLE)
+    for circuit, diagnosis in zip(ctx["circuits"], diagnoses, strict=True):
+        ok = diagnosis["circuit"]["zs_ok"]
+        assert circuit["summary"]["result"] == {True: "pass", False: "FAIL"}.get(ok, "not proved")
+
+
 def test_worked_example_values_on_the_sheet():
     """Circuit DB1/4 of the hand-made job: 32 A type B BS EN 60898, Ze 0.31 Ω measured,
     r1 0.52, rn 0.53, r2 0.85."""

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import io
+import threading
 
 import pytest
 import sqlalchemy as sa
@@ -60,7 +61,12 @@ def test_saves_coalesce_into_one_queued_job_and_a_worker_stores_the_diagnosis(
         assert reply.get_json()["diagnosis_pending"] is True, reply.get_json()
     assert _jobs(queue_app) == [(f"circuit-{circuit_id}", "todo")]  # three saves, one job
     assert client.get(f"/api/circuits/{circuit_id}/diagnosis").status_code == 202
-    taskqueue.run_worker(queue_app, wait=False)  # another process in real life
+    # another process in real life; a thread of its own here, so its event loop is its own
+    worker = threading.Thread(target=taskqueue.run_worker, args=(queue_app,),
+                              kwargs={"wait": False})
+    worker.start()
+    worker.join(timeout=60)
+    assert not worker.is_alive()
     assert _jobs(queue_app) == [(f"circuit-{circuit_id}", "succeeded")]
     poll = client.get(f"/api/circuits/{circuit_id}/diagnosis")
     assert poll.status_code == 200 and poll.get_json()["leading"]["verdict"]

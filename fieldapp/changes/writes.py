@@ -1,9 +1,8 @@
-"""Every write to a job, circuit or outlet goes through here and leaves ChangeLog rows.
+"""The change log and the lock: every write to a job, circuit or outlet is logged here.
 
-Forms, the JSON API and the importer all call these helpers, so nothing is overwritten without
-a record of the old value, the new value, who made the change and from which device. A reading
-write may carry a client-made id (idempotency key): a write whose id is already in the log is
-not applied again.
+``log`` appends one ChangeLog row (old -> new, user, device) after ``check_writable``, the
+server's one lock; ``create`` and ``update`` write a row's fields through it. Readings are
+written by ``reading_writes.set_reading`` and outlets by ``outlet_writes``, both through ``log``.
 """
 
 from __future__ import annotations
@@ -14,13 +13,10 @@ import math
 import re
 from dataclasses import dataclass
 
-from sqlalchemy import func, select
-from sqlalchemy.exc import IntegrityError
+from sqlalchemy import select
 
-from fieldapp import limits
 from fieldapp.extensions import db
 from fieldapp.models import ChangeLog, Circuit, Job, Outlet, utcnow
-from ringmath import parse_reading
 
 #: Circuit readings (step 1) and outlet readings (steps 2 and 3).
 CIRCUIT_READINGS = ("r1", "rn", "r2")
@@ -33,7 +29,7 @@ EDITABLE_STATUSES = ("in_progress", "returned")
 CLIENT_ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_-]{7,63}$")
 
 
-log_ = logging.getLogger(__name__)
+log_ = logging.getLogger("fieldapp.changes")
 
 
 class Refused(Exception):
@@ -54,19 +50,6 @@ class Actor:
     user_id: int | None
     device: str = ""
 
-
-@dataclass(frozen=True)
-class ReadingWrite:
-    """What a reading write did. duplicate: the client id was seen before, nothing applied."""
-
-    field: str
-    old: str | None
-    new: str | None
-    duplicate: bool = False
-
-    @property
-    def changed(self) -> bool:
-        return not self.duplicate and self.old != self.new
 
 
 def entity_name(obj) -> str:
@@ -97,14 +80,6 @@ def as_text(value) -> str | None:
         return "OL" if math.isinf(value) else repr(value)
     return str(value)
 
-
-def reading_text(value: float | None) -> str | None:
-    """A parsed reading as stored: "0.52", "OL" or None."""
-    if value is None:
-        return None
-    if math.isinf(value):
-        return "OL"
-    return repr(round(float(value), 4))
 
 
 #: Job fields that submitting, reviewing and reopening change: writable on a locked job.
@@ -230,126 +205,6 @@ def safety_confirmed(circuit: Circuit) -> bool:
     return bool(circuit.safety_isolated and circuit.safety_locked_off
                 and circuit.safety_proved_dead)
 
-
-def set_reading(circuit: Circuit, field: str, raw, actor: Actor, *, outlet: Outlet | None = None,
-                client_id: str | None = None, taken_at=None) -> ReadingWrite:
-    """Store one reading (raw as typed: "0.52", "0,52", "OL", a number, or None to clear).
-
-    ValueError (nothing changed) for a bad value; a known client id is a no-op duplicate.
-    Every write with a client id is logged, even when the value is unchanged, so that a late
-    replay of the same id can never undo a later correction.
-    """
-    client_id = check_client_id(client_id)
-    taken_at = taken_time(taken_at)
-    target = _reading_target(circuit, field, outlet)
-    path = field if outlet is None else f"{outlet.key}.{field}"
-    new = reading_text(parse_reading(raw, path))
-    old = getattr(target, field)
-    earlier = seen(client_id)
-    if earlier is not None:
-        return ReadingWrite(field, earlier.old_value, earlier.new_value, duplicate=True)
-    if old == new and client_id is None:
-        return ReadingWrite(field, old, new)
-    setattr(target, field, new)
-    log(target, field, old, new, actor, client_id, taken_at)
-    try:
-        db.session.flush()
-    except IntegrityError:  # the same id arrived twice at once: the other one won
-        db.session.rollback()
-        earlier = seen(client_id)
-        if earlier is None:
-            raise
-        return ReadingWrite(field, earlier.old_value, earlier.new_value, duplicate=True)
-    return ReadingWrite(field, old, new)
-
-
-def _reading_target(circuit: Circuit, field: str, outlet: Outlet | None):
-    if field in CIRCUIT_READINGS:
-        if outlet is not None:
-            raise ValueError(f"{field}: an end-to-end reading belongs to the circuit")
-        return circuit
-    if field in OUTLET_READINGS + LIVE_OUTLET_READINGS:
-        if outlet is None or outlet.circuit_id != circuit.id or outlet.deleted_at is not None:
-            raise ValueError(f"{field}: needs an outlet of this circuit")
-        return outlet
-    known = READING_FIELDS + LIVE_OUTLET_READINGS
-    raise ValueError(f"step: {field!r} is not one of {', '.join(known)}")
-
-
-def live_outlets(circuit: Circuit) -> list[Outlet]:
-    """The circuit's outlets in visiting order, without deleted ones."""
-    return [o for o in circuit.outlets if o.deleted_at is None]
-
-
-def next_outlet_key(circuit: Circuit) -> str:
-    """The first of a, b, ... z, aa, ab, ... not used by any outlet (deleted ones count)."""
-    used = set(db.session.scalars(select(Outlet.key).where(Outlet.circuit_id == circuit.id)))
-    n = 0
-    while True:
-        key, i = "", n
-        while True:
-            key = chr(ord("a") + i % 26) + key
-            i = i // 26 - 1
-            if i < 0:
-                break
-        if key not in used:
-            return key
-        n += 1
-
-
-def add_outlet(circuit: Circuit, values: dict, actor: Actor,
-               client_id: str | None = None) -> Outlet:
-    """A new outlet at the end of the visiting order; a known client id returns the earlier one."""
-    client_id = check_client_id(client_id)
-    earlier = seen(client_id)
-    if earlier is not None:
-        return db.session.get(Outlet, earlier.entity_id)
-    _check_spur_source(circuit, values.get("spur_from_key"), None)
-    if len(live_outlets(circuit)) >= limits.MAX_OUTLETS_PER_CIRCUIT or sum(
-            len(live_outlets(c)) for c in circuit.job.circuits) >= limits.MAX_OUTLETS_PER_JOB:
-        raise Refused(f"A circuit holds at most {limits.MAX_OUTLETS_PER_CIRCUIT} outlets and a "
-                      f"job {limits.MAX_OUTLETS_PER_JOB}.",
-                      job_id=circuit.job_id, circuit_id=circuit.id)
-    last = db.session.scalar(
-        select(func.max(Outlet.position)).where(Outlet.circuit_id == circuit.id))
-    fields = {"circuit_id": circuit.id, "position": (last or 0) + 1,
-              "key": values.get("key") or next_outlet_key(circuit)}
-    fields.update({k: v for k, v in values.items() if k != "key"})
-    outlet = create(Outlet, fields, actor, client_id)
-    db.session.refresh(circuit)
-    return outlet
-
-
-def edit_outlet(outlet: Outlet, values: dict, actor: Actor) -> list[str]:
-    """Change an outlet's details (not its readings: use set_reading)."""
-    if set(values) & set(OUTLET_READINGS + LIVE_OUTLET_READINGS):
-        raise ValueError("readings change through set_reading")
-    _check_spur_source(outlet.circuit, values.get("spur_from_key"), outlet)
-    return update(outlet, values, actor)
-
-
-def _check_spur_source(circuit: Circuit, key: str | None, outlet: Outlet | None) -> None:
-    if not key:
-        return
-    keys = {o.key: o for o in live_outlets(circuit)}
-    if key not in keys:
-        raise ValueError(f"spur_from: no outlet {key!r} on this circuit")
-    if outlet is None:
-        return
-    cur = keys[key]
-    while cur is not None:  # the new feed must not lead back to the outlet itself
-        if cur.key == outlet.key:
-            raise ValueError("spur_from: an outlet cannot be fed from itself or its own spur")
-        cur = keys.get(cur.spur_from_key) if cur.spur_from_key else None
-
-
-def delete_outlet(outlet: Outlet, actor: Actor) -> None:
-    """Soft delete: the outlet leaves the record, its row and history stay."""
-    fed = [o.key for o in live_outlets(outlet.circuit) if o.spur_from_key == outlet.key]
-    if fed:
-        raise Refused(f"Outlet {outlet.key} feeds {', '.join(fed)}: "
-                      "delete or move those spurs first.", circuit_id=outlet.circuit_id)
-    update(outlet, {"deleted_at": utcnow()}, actor)
 
 
 def history(circuit: Circuit) -> list[ChangeLog]:
