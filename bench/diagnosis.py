@@ -82,7 +82,7 @@ def _show(cond: Condition, truth, result: dict) -> None:
 
 
 def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: int,
-                  show: str | None = None) -> list[dict]:
+                  show: str | None = None, calibrate: bool = True) -> list[dict]:
     rows = []
     for code in [None] * healthy + [c for c in FAULT_CODES for _ in range(n)]:
         also = None
@@ -94,7 +94,7 @@ def run_condition(cond: Condition, rng: np.random.Generator, n: int, healthy: in
             picks["at"] = "terminal"  # one outlet's core off its terminal: reads like a swap
         record, truth = simulate(rng, code, also=also, nuisance=cond.draw(rng), **picks)
         t0 = time.perf_counter()
-        result = diagnose(record)
+        result = diagnose(record, calibrate=calibrate)
         row = score(result, truth, record, hand_rule(record))
         row["ms"] = 1000 * (time.perf_counter() - t0)
         rows.append(row)

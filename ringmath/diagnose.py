@@ -15,11 +15,13 @@ from dataclasses import replace
 
 import numpy as np
 
-from ringmath import checks, explain, messages, ranking, rules, setup_messages, zs
+from ringmath import calibration, checks, explain, messages, ranking, rules, setup_messages, zs
+from ringmath import verdict as verdicts
 from ringmath.findings import Finding
 from ringmath.fitting import Fit, position_posterior
 from ringmath.likelihood import Prepared, prepare, t_grid
 from ringmath.record import RingTest, format_reading, parse_record
+from ringmath.verdict import LEADING_CODES, complete
 
 #: A fault position whose spread (ring fractions, over the uniform search grid) exceeds this
 #: is "not located". A flat profile over half the ring gives 0.144. Calibrated on simulated
@@ -35,11 +37,8 @@ CONFIDENCE_CAP = 0.97
 MISSING_STEP_CAP = 0.85
 #: A best explanation needing this many independent faults is doubted as a whole.
 MANY_FAULTS = 3
-#: Findings that doubt the readings themselves: they lead, and the verdict is "retest".
-LEADING_CODES = frozenset({"setup_instrument", "setup_readings_inconsistent"})
-#: Set-up findings that call for a re-test when no credible fault stands.
-RETEST_CODES = frozenset({"setup_lead_offset", "setup_lead_offset_step", "setup_socket_contacts",
-                          "end_to_end_zero"})
+#: The two explanations of an outlet's OL readings that the readings cannot tell apart.
+TIE_CODES = ("reversed_polarity", "open_conductor")
 
 
 def _posterior(prep: Prepared, fit: Fit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -115,17 +114,51 @@ def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
                    confidence=confidence, position=x if located else None)
 
 
+def _missing_step(prep: Prepared) -> bool:
+    return bool(np.all(np.isnan(prep.ln_ohm)) or np.all(np.isnan(prep.le_ohm)))
+
+
 def _cap(p: float, prep: Prepared) -> float:
-    """A stated confidence: never above CONFIDENCE_CAP (the model is never the whole truth:
-    readings carry meter noise, and the simulator the model was checked on is not the site),
-    and lower with a step missing (MISSING_STEP_CAP: faults that differ only in the missing
-    step cannot be told apart)."""
-    missing = bool(np.all(np.isnan(prep.ln_ohm)) or np.all(np.isnan(prep.le_ohm)))
-    return float(min(p, MISSING_STEP_CAP if missing else CONFIDENCE_CAP))
+    """A posterior as a confidence: never above CONFIDENCE_CAP (the model is never the whole
+    truth: readings carry meter noise, and the simulator the model was checked on is not the
+    site), and lower with a step missing (MISSING_STEP_CAP: faults that differ only in the
+    missing step cannot be told apart)."""
+    return float(min(p, MISSING_STEP_CAP if _missing_step(prep) else CONFIDENCE_CAP))
+
+
+def _stated(findings: list[Finding], hypotheses: list[dict], prep: Prepared) -> list[Finding]:
+    """Confidences as stated: each through the benchmark's monotone calibration
+    (``calibration.calibrated``), capped again. Two tied explanations of one outlet's OL
+    readings share one probability: their sum is calibrated and split as before. Decisions
+    made on the posterior (severity, worn-contacts doubt, tie shares) are not moved by it.
+    ``hypotheses`` are restated in place."""
+    top = MISSING_STEP_CAP if _missing_step(prep) else CONFIDENCE_CAP
+
+    def stated(p: float) -> float:
+        return min(calibration.calibrated(min(p, 1.0)), top)
+
+    for h in hypotheses:
+        h["confidence"] = round(stated(h["confidence"]), 3)
+    ties: dict[tuple[str, ...], list[int]] = {}
+    for i, f in enumerate(findings):
+        if f.confidence is not None and f.code in TIE_CODES and len(f.outlets) == 1:
+            ties.setdefault(f.outlets, []).append(i)
+    scale = {}
+    for members in ties.values():
+        total = sum(findings[i].confidence or 0.0 for i in members)
+        if len(members) > 1 and total > 0:
+            scale.update({i: stated(total) / total for i in members})
+    return [f if f.confidence is None else replace(
+        f, confidence=f.confidence * scale[i] if i in scale else stated(f.confidence))
+        for i, f in enumerate(findings)]
 
 
 def _fitted(test: RingTest, prep: Prepared) -> dict:
     """Fit, rank and locate. Returns findings, hypotheses, positions and ring order."""
+
+    def cap(p: float) -> float:
+        return _cap(p, prep)
+
     combos, weights = ranking.rank(prep)
     if not combos:
         return {"findings": [], "hypotheses": [], "positions": {}, "contact_sd": None}
@@ -136,18 +169,19 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
     post, place, sd = _posterior(used, best_fit)
     findings: list[Finding] = []
     if best_fit.code != "healthy":
-        conf = _cap(ranking.fit_weight(combos, weights, best_fit), prep)
+        conf = cap(ranking.fit_weight(combos, weights, best_fit))
         findings.append(_fit_finding(used, best_fit, conf, post, place, names))
     front = {o.id for o in test.outlets if getattr(o, "taken_at", None) == "front"}
     local = []
     for lf in best.local:
         p = ranking.local_weight(combos, weights, lf)
         # tied explanations share one probability: the pair is capped, each keeps its part
-        local.append((lf, min(p, _cap(1.0, prep) * lf.tie_share) if lf.tie else _cap(p, prep)))
+        local.append((lf, min(cap(p), cap(1.0) * lf.tie_share) if lf.tie else cap(p)))
     findings.extend(explain.local_findings(used, local, names, front))
     p_setup = ranking.setup_weight(combos, weights)
     if best.setup is not None:
-        found = explain.setup_finding(best.setup, prep, _cap(p_setup, prep))
+        # "some set-up error" times this kind's share among the kinds: a finding names one kind
+        found = explain.setup_finding(best.setup, prep, cap(p_setup * best.setup.p_kind))
         if found is not None:
             findings.insert(0, found)
     independent = (best_fit.code != "healthy") + sum(
@@ -157,7 +191,7 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
             lf.code for lf in best.local if lf.code != "setup_socket_contacts"]
         msg, nxt = setup_messages.many_faults(independent, codes)
         findings = [Finding("setup_readings_inconsistent", "warning", msg, nxt,
-                            confidence=_cap(float(weights[0]), prep))] + [
+                            confidence=cap(float(weights[0])))] + [
             replace(f, severity="warning" if f.severity == "fault" else f.severity,
                     confidence=None if f.confidence is None else f.confidence / 2)
             for f in findings]
@@ -167,14 +201,14 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
                            "outlets": [lf.outlet for lf in c.local],
                            "local": [lf.code for lf in c.local],
                            "setup": None if c.setup is None else c.setup.kind,
-                           "confidence": round(_cap(float(w), prep), 3),
+                           "confidence": round(cap(float(w)), 3),
                            "score": round(float(c.score), 2)})
     if len(combos) > 1 and combos[0].score - combos[1].score < LOOK_ALIKE_NATS:
         first = _lead_code(combos[0])
         second = _lead_code(combos[1])
         if first != second and "healthy" not in (first, second):
             findings.append(Finding("look_alike", "info", messages.look_alike(first, second),
-                                    confidence=_cap(float(weights[1]), prep)))
+                                    confidence=cap(float(weights[1]))))
     # A sound ring (or one with crossed ends) reads the same whichever end an outlet is near:
     # its readings give no order to draw. A fault breaks that symmetry and places outlets.
     placed = best_fit.code not in POSITIONLESS
@@ -199,54 +233,12 @@ def _ring_order(test: RingTest, positions: dict) -> list[str]:
     return sorted(ring, key=lambda oid: positions[oid][0])
 
 
-def _complete(test: RingTest) -> bool:
-    e = test.end_to_end
-    return (e.complete() and bool(test.outlets) and test.circuit.ze_ohm is not None
-            and all(o.ln_ohm is not None and o.le_ohm is not None for o in test.outlets))
-
-
-def _verdict(test: RingTest, findings: list[Finding]) -> str:
-    """retest when the leading finding doubts the readings, or a set-up check is due and no
-    credible fault stands; investigate for a credible fault; else incomplete / satisfactory.
-    Warnings alone (a check to make) leave a complete test satisfactory."""
-    if findings and findings[0].code in LEADING_CODES:
-        return "retest"
-    # a Zs over the limit at outlets whose readings look like worn socket contacts waits for
-    # the re-measure at the terminals (the front reading overstates R1+R2)
-    worn = {o for f in findings if f.severity == "warning" and f.code in (
-        "setup_socket_contacts", "unrecorded_spur", "high_resistance_joint") for o in f.outlets}
-    if any(f.severity == "fault" and not (f.code == "zs_over_limit" and f.outlets
-                                          and set(f.outlets) <= worn) for f in findings):
-        return "investigate"
-    if any(f.code in RETEST_CODES and f.severity == "warning" for f in findings):
-        return "retest"
-    return "satisfactory" if _complete(test) else "incomplete"
-
-
-def _summary(verdict: str, findings: list[Finding], names: dict) -> str:
-    lead = findings[0] if findings else None
-    if verdict == "retest" and lead is not None:
-        shown = [names.get(o, o) for o in lead.outlets] if len(lead.outlets) <= 2 else []
-        code = next((f.code for f in findings if f.code in LEADING_CODES | RETEST_CODES),
-                    lead.code)
-        return messages.headline(code, lead.conductor, lead.step, shown)
-    faults = [f for f in findings if f.severity == "fault"]
-    if faults:
-        top = faults[0]
-        shown = [names.get(o, o) for o in top.outlets] if len(top.outlets) <= 2 else []
-        return messages.headline(top.code, top.conductor, top.step, shown)
-    if verdict == "incomplete":
-        return "No fault found so far; the test is not finished."
-    if any(f.severity == "warning" for f in findings):
-        return "The readings fit a sound ring; some checks need attention."
-    return "The readings fit a sound ring with the recorded spurs."
-
-
-def diagnose(record) -> dict:
+def diagnose(record, *, calibrate: bool = True) -> dict:
     """Diagnose one circuit record (dict in the ringtest/1 format, or a parsed RingTest).
 
     Returns the plain-values result documented in DEVELOPERS.md. Raises ValueError naming the
-    field for a bad record.
+    field for a bad record. ``calibrate=False`` states the raw posterior (capped): only for
+    fitting the calibration (bench/diag_calibrate.py).
     """
     test = record if isinstance(record, RingTest) else parse_record(record)
     findings: list[Finding] = []
@@ -265,7 +257,7 @@ def diagnose(record) -> dict:
     order = {"fault": 0, "warning": 1, "info": 2}
     findings.sort(key=lambda f: (f.code not in LEADING_CODES, order[f.severity],
                                  -(f.confidence or 0.0)))
-    if fit_part.get("healthy") and _complete(test) and not any(
+    if fit_part.get("healthy") and complete(test) and not any(
             f.severity in ("fault", "warning") for f in findings):
         limit = explain.detection_limit(fit_part["prep"], fit_part["contact_sd"],
                                         test.circuit.live_csa_mm2)
@@ -276,11 +268,13 @@ def diagnose(record) -> dict:
         pos = fit_part["positions"].get(p["id"])
         p["position"] = None if pos is None or pos[0] is None else round(pos[0], 3)
         p["position_sd"] = None if pos is None else round(pos[1], 3)
-    verdict = _verdict(test, findings)
+    if calibrate:
+        findings = _stated(findings, fit_part["hypotheses"], prep)
+    said, findings = verdicts.agree(test, findings)
     return {
-        "verdict": verdict,
-        "verdict_words": messages.VERDICT_WORDS[verdict],
-        "summary": _summary(verdict, findings, {o.id: o.label or o.id for o in test.outlets}),
+        "verdict": said,
+        "verdict_words": messages.VERDICT_WORDS[said],
+        "summary": verdicts.summary(said, findings, {o.id: o.label or o.id for o in test.outlets}),
         "findings": [f.as_dict() for f in findings],
         "circuit": circuit,
         "points": points,

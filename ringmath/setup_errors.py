@@ -67,7 +67,9 @@ class Setup:
     (1 + g) x what step 1 implies). log_cost: log prior of the kind + the Occam factor of its
     parameter (<= 0). vs_none: its evidence under a sound ring minus "as read" (nats).
     p_beyond: posterior probability (over the kind's grid) that the offset is beyond
-    OFFSET_TOLERATED_OHM either way: the readings then have to be re-taken."""
+    OFFSET_TOLERATED_OHM either way: the readings then have to be re-taken. p_kind: this kind's
+    share of the posterior of all set-up kinds (under a sound ring): what a finding naming the
+    kind multiplies the probability of "some set-up error" by."""
 
     kind: str
     offset_ohm: float = 0.0
@@ -75,6 +77,7 @@ class Setup:
     log_cost: float = 0.0
     vs_none: float = 0.0
     p_beyond: float = 0.0
+    p_kind: float = 1.0
 
     def log_jacobian(self, n_step_readings: int) -> float:
         """log |d reading / d true| summed over the step 2-3 readings: a gain g stretches
@@ -133,11 +136,13 @@ def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
     kinds = np.array([r[0] for r in rows])
     none = float(ll[0]) + np.log(P_NONE)
     best: Setup | None = None
+    evidences = []
     for kind, prior in SETUP_PRIORS.items():
         sel = np.flatnonzero(kinds == kind)
         if not sel.size:
             continue
         evidence = float(log_mean_exp(ll[sel])) + np.log(prior)
+        evidences.append(evidence)
         top = int(sel[np.argmax(ll[sel])])
         params = np.array([rows[i][1] for i in sel])
         w = np.exp(ll[sel] - ll[sel].max())
@@ -147,7 +152,12 @@ def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
                      beyond if kind not in ("gain", "scale") else 0.0)
         if best is None or cand.vs_none > best.vs_none:
             best = cand
-    return best
+    if best is None:
+        return None
+    ev = np.array(evidences)
+    # share of the best kind: exp(its evidence) / sum over kinds (log-sum-exp for safety)
+    share = np.exp(best.vs_none + none - ev.max()) / np.exp(ev - ev.max()).sum()
+    return replace(best, p_kind=float(min(share, 1.0)))
 
 
 def correct(prep: Prepared, setup: Setup) -> Prepared:

@@ -175,3 +175,24 @@ def test_sound_result_states_what_it_cannot_see():
     assert result["verdict"] == "satisfactory"
     limit = next(f for f in result["findings"] if f["code"] == "detection_limit")
     assert "neighbouring outlets" in limit["message"] and "cannot be seen" in limit["message"]
+
+
+@pytest.mark.parametrize(("add", "kind"), [
+    ({"ln_add": 0.10, "le_add": 0.10, "e2e_add": 0.10}, "leads"),
+    ({"scale": 2.0}, "scale")])
+def test_a_set_up_kind_is_stated_with_its_own_share_not_any_set_up_error(add, kind):
+    from ringmath.likelihood import prepare, search_index
+    from ringmath.ranking import rank
+    from ringmath.record import parse_record
+    from ringmath.setup_errors import fit_setup
+
+    record = _record(**add)
+    prep = prepare(parse_record(record))
+    combos, _ = rank(prep)
+    healthy = next(c.fit for c in combos if c.fit.code == "healthy")
+    setup = fit_setup(prep, search_index(healthy.contact_sd))
+    assert setup is not None and setup.kind == kind
+    # a clear case: this kind holds nearly all the set-up posterior, and never more than all
+    assert 0.9 < setup.p_kind <= 1.0
+    lead = diagnose(record)["findings"][0]
+    assert lead["code"].startswith("setup_") and lead["confidence"] <= CONFIDENCE_CAP
