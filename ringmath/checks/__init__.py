@@ -1,21 +1,7 @@
 """Instant checks of each reading against what a healthy ring of the recorded cable would give.
 
-Step 2 and step 3 readings at a point a fraction ``t`` of the way round a ring whose two
-cross-connected conductors have end-to-end resistances ``a`` and ``b`` ohms (step 2: a = r1,
-b = rn; step 3: a = r1, b = r2) are two paths in parallel, ``t·a + (1−t)·b`` and
-``(1−t)·a + t·b``, so
-
-    R(t) = [a·b + t(1−t)(a−b)²] / (a+b)
-
-(series-parallel reduction of the cross-connected ring). It is lowest at the ends,
-a·b/(a+b), and highest mid-ring, (a+b)/4. With a = b every point reads (a+b)/4: the familiar
-"same reading at every socket". The band a ring point is checked against is that range widened
-by the meter tolerance: BAND_SIGMAS × meter.sigma_ohm, never less than the common-practice
-±0.05 Ω.
-
-A spur point reads its parent's value plus its own spur cable (a dead end adds in series):
-step 2 adds line + neutral of the spur, step 3 adds line + cpc. The same cable raises step 3
-(1 + r2/r1) / (1 + rn/r1) times as much as step 2: 1.32 for 2.5/1.5 mm² twin and earth.
+The formula for a healthy ring point, R(t) = [a·b + t(1−t)(a−b)²] / (a+b), its band and a
+spur's excess are stated once, in ``expected``.
 
 The checks live in one module per topic: ``expected`` (bands), ``end_to_end`` (step 1),
 ``readings`` (the status of each reading), ``spurs`` (a spur's cable) and ``spur_findings``.
