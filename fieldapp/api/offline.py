@@ -45,6 +45,18 @@ def _load(schema):
         return None, (jsonify({"errors": error.messages}), 400)
 
 
+def _circuit_and_body(circuit_id: int, schema):
+    """(circuit, loaded body, None), or (None, None, the error reply) for an unknown circuit
+    or a body the schema refuses: the opening every endpoint here shares."""
+    circuit, missing = _circuit(circuit_id)
+    if missing:
+        return None, None, missing
+    data, bad = _load(schema)
+    if bad:
+        return None, None, bad
+    return circuit, data, None
+
+
 def _ready(circuit: Circuit, *, readings: bool = True):
     try:
         if readings:
@@ -71,12 +83,9 @@ def _outlet_reply(outlet: Outlet, client_id: str | None, created: bool) -> dict:
 @bp.post("/circuits/<int:circuit_id>/outlets")
 @api_login(*TESTING_ROLES)
 def post_outlet(circuit_id: int):
-    circuit, missing = _circuit(circuit_id)
-    if missing:
-        return missing
-    data, bad = _load(OutletIn())
-    if bad:
-        return bad
+    circuit, data, error = _circuit_and_body(circuit_id, OutletIn())
+    if error:
+        return error
     earlier = changes.seen(data["client_id"])
     if earlier is not None:  # sent before (the reply was lost): the same outlet
         outlet = db.session.get(Outlet, earlier.entity_id) if earlier.entity == "outlet" else None
@@ -108,12 +117,9 @@ def post_outlet(circuit_id: int):
 @bp.post("/circuits/<int:circuit_id>/outlets/<key>")
 @api_login(*TESTING_ROLES)
 def post_outlet_label(circuit_id: int, key: str):
-    circuit, missing = _circuit(circuit_id)
-    if missing:
-        return missing
-    data, bad = _load(OutletEditIn())
-    if bad:
-        return bad
+    circuit, data, error = _circuit_and_body(circuit_id, OutletEditIn())
+    if error:
+        return error
     refused = _ready(circuit, readings=False)
     if refused:
         return refused
@@ -132,12 +138,9 @@ def post_outlet_label(circuit_id: int, key: str):
 @bp.post("/circuits/<int:circuit_id>/step")
 @api_login(*TESTING_ROLES)
 def post_step(circuit_id: int):
-    circuit, missing = _circuit(circuit_id)
-    if missing:
-        return missing
-    data, bad = _load(StepIn())
-    if bad:
-        return bad
+    circuit, data, error = _circuit_and_body(circuit_id, StepIn())
+    if error:
+        return error
     refused = _ready(circuit, readings=False)
     if refused:
         return refused
