@@ -60,21 +60,24 @@ def reading_loglik(x: np.ndarray, mu: np.ndarray, extra_sd=0.0) -> np.ndarray:
     (ohms sd, added in quadrature to the meter's ``meter.sigma_ohm``). Broadcasts.
 
     Computed on whole arrays (no masked copies): the Gaussian part is evaluated everywhere on
-    safe stand-in values and only kept where reading and model are both finite.
+    safe stand-in values and only kept where reading and model are both finite. The mixture
+    log(exp(g) + exp(c)) is written as c + max(g - c, 0) + log1p(exp(-|g - c|)), the same
+    value as ``np.logaddexp`` for a constant c at about half its cost.
     """
     x = np.asarray(x, dtype=float)
     mu = np.asarray(mu, dtype=float)
     x_fin, mu_fin = np.isfinite(x), np.isfinite(mu)
-    fin = x_fin & mu_fin
-    xs = np.where(x_fin, x, 0.0)
-    ms = np.where(mu_fin, np.maximum(mu, 0.0), 0.0)
+    all_fin = bool(x_fin.all()) and bool(mu_fin.all())
+    xs = x if all_fin else np.where(x_fin, x, 0.0)
+    ms = np.maximum(mu, 0.0) if all_fin else np.where(mu_fin, np.maximum(mu, 0.0), 0.0)
     # sigma² = meter.sigma_ohm(mu)² + extra² (the meter formula written out for arrays)
     var = (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * ms) ** 2
            + np.asarray(extra_sd, dtype=float) ** 2)
-    gauss = _LOG_INLIER - 0.5 * (xs - ms) ** 2 / var - 0.5 * np.log(var)
-    mixed = np.logaddexp(gauss, LOG_OUTLIER)
-    if np.all(fin):
+    above = (_LOG_INLIER - LOG_OUTLIER) - 0.5 * ((xs - ms) ** 2 / var + np.log(var))
+    mixed = LOG_OUTLIER + np.maximum(above, 0.0) + np.log1p(np.exp(-np.abs(above)))
+    if all_fin:
         return mixed
+    fin = x_fin & mu_fin
     x_ol, mu_ol = np.isinf(x), np.isinf(mu)
     taken = ~np.isnan(x)
     ol = np.where(x_ol & mu_ol, np.log1p(-P_OL_FALSE), np.log(P_OL_FALSE))
