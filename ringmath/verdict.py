@@ -70,12 +70,19 @@ def verdict(test: RingTest, findings: list[Finding]) -> str:
     return "satisfactory" if complete(test) else "incomplete"
 
 
+def _retest_lead(findings: list[Finding]) -> Finding:
+    """The finding a "retest" verdict is about: the first that doubts the readings or calls for
+    a set-up check, else the first finding (``findings`` is not empty)."""
+    return next((f for f in findings if f.code in LEADING_CODES | RETEST_CODES), findings[0])
+
+
 def agree(test: RingTest, findings: list[Finding]) -> tuple[str, list[Finding]]:
-    """The verdict and the findings made consistent with it (see the module docstring)."""
+    """The verdict and the findings made consistent with it (see the module docstring); under
+    "retest" its lead comes first."""
     result = verdict(test, findings)
     if result != "retest" or not findings:
         return result, findings
-    lead = next((f for f in findings if f.code in LEADING_CODES | RETEST_CODES), findings[0])
+    lead = _retest_lead(findings)
     scale = 1.0 - (lead.confidence or 0.0) / 2.0
     out = [lead] + [
         replace(f, severity="warning" if f.severity == "fault" else f.severity,
@@ -87,12 +94,10 @@ def agree(test: RingTest, findings: list[Finding]) -> tuple[str, list[Finding]]:
 
 def summary(result: str, findings: list[Finding], names: dict[str, str]) -> str:
     """The headline: the lead of a re-test, else the first fault or credible wiring finding."""
-    lead = findings[0] if findings else None
-    if result == "retest" and lead is not None:
+    if result == "retest" and findings:
+        lead = _retest_lead(findings)
         shown = [names.get(o, o) for o in lead.outlets] if len(lead.outlets) <= 2 else []
-        code = next((f.code for f in findings if f.code in LEADING_CODES | RETEST_CODES),
-                    lead.code)
-        return messages.headline(code, lead.conductor, lead.step, shown)
+        return messages.headline(lead.code, lead.conductor, lead.step, shown)
     faults = [f for f in findings if f.severity == "fault"] or [
         f for f in findings if credible(f)]
     if faults:
