@@ -15,8 +15,8 @@ from ringmath.conductors import resistance_mohm_per_m
 from ringmath.findings import Finding
 from ringmath.likelihood import Prepared
 from ringmath.local import LocalFault
-from ringmath.network import Layout, step_resistance
 from ringmath.setup_errors import Setup
+from ringmath.star import BRIDGE, step_readings
 
 #: A joint adding at least this much is a fault (it can overheat under load); below it the
 #: readings call for a check of the terminations (common practice: r1 and rn within 0.05 Ω;
@@ -34,7 +34,6 @@ GAIN_NOTE = 0.03
 FRONT_SURE = 0.8
 #: Standard deviations a fault must move a reading by to be seen among many readings.
 DETECT_SIGMAS = 4.0
-_BRIDGE = Layout(3, (False, False, False), extras=((1, 2),))
 
 
 def joint_severity(r_ohm: float) -> str:
@@ -157,8 +156,8 @@ def _bridge_across_one_m(prep: Prepared, sigma_ohm: float) -> float | None:
     extra = fractions[:, None]
     ends = marks.copy()
     ends[:, 0] = ends[:, 1]
-    unit = step_resistance(_BRIDGE, "e2e:line", ends, np.ones((b, 3)), extra_fraction=extra)
-    ln = step_resistance(_BRIDGE, "ln", marks, ring, extra_fraction=extra)
+    unit = step_readings(BRIDGE, "e2e:line", ends, np.ones((b, 3)), extra_fraction=extra)
+    ln = step_readings(BRIDGE, "ln", marks, ring, extra_fraction=extra)
     healthy = unit * (r1 + rn) / 4
     seen = np.abs(healthy - ln) >= DETECT_SIGMAS * sigma_ohm
     if not np.any(seen):

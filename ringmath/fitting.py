@@ -30,10 +30,11 @@ from ringmath.likelihood import (
     search_index,
     t_grid,
 )
-from ringmath.network import CONDUCTOR_INDEX, Layout, step_resistance
+from ringmath.network import CONDUCTOR_INDEX, Layout
 from ringmath.nodal import SHORT_OHM
 from ringmath.search import position_spread as _position_sd
 from ringmath.search import refine as _refine
+from ringmath.star import BRIDGE, PLAIN, SPLIT, step_readings
 
 G_FINE = 64
 G_COARSE = 16
@@ -49,9 +50,6 @@ PRIORS = {
 }
 #: Smallest series joint worth naming, ohms (smaller ones hide in cable tolerance).
 JOINT_MIN_OHM = 0.03
-_PLAIN = Layout(1, (False,))
-_SPLIT = Layout(2, (False, True))
-_BRIDGE = Layout(3, (False, False, False), extras=((1, 2),))
 
 
 @dataclass(frozen=True)
@@ -91,8 +89,8 @@ class Fit:
 
 def _steps(layout: Layout, marks: np.ndarray, ring: np.ndarray, series=None, extra=None,
            ln_step: str = "ln", le_step: str = "le") -> tuple[np.ndarray, np.ndarray]:
-    ln = step_resistance(layout, ln_step, marks, ring, series, extra)
-    le = step_resistance(layout, le_step, marks, ring, series, extra)
+    ln = step_readings(layout, ln_step, marks, ring, series, extra)
+    le = step_readings(layout, le_step, marks, ring, series, extra)
     return ln, le
 
 
@@ -112,7 +110,7 @@ def fit_healthy(prep: Prepared, wrong_step: str | None = None) -> Fit:
     ring = prep.e2e_ohm.copy()
     marks = t_grid(G_FINE)[:, None]
     rings = np.tile(ring, (G_FINE, 1))
-    ln, le = _steps(_PLAIN, marks, rings,
+    ln, le = _steps(PLAIN, marks, rings,
                     ln_step="ln_wrong" if wrong_step == "ln" else "ln",
                     le_step="le_wrong" if wrong_step == "le" else "le")
     cons = e2e_consistency(ring, prep)
@@ -140,13 +138,13 @@ def _bridge_eval(prep: Prepared, theta: np.ndarray, g: int,
     s_index: search at one contact sd (``marginal_loglik``)."""
     n = theta.shape[0]
     ends = np.concatenate([theta[:, :1], theta[:, :2]], axis=1)  # probe parked at a
-    unit = step_resistance(_BRIDGE, "e2e:line", ends, np.ones((n, 3)),
+    unit = step_readings(BRIDGE, "e2e:line", ends, np.ones((n, 3)),
                            extra_fraction=theta[:, 2:3])
     ring = prep.e2e_ohm[None, :] / unit[:, None]
     marks = _with_probe(theta[:, :2], g)
     rings = np.repeat(ring, g, axis=0)
     extra = np.repeat(theta[:, 2:3], g, axis=0)
-    ln, le = _steps(_BRIDGE, marks, rings, extra=extra)
+    ln, le = _steps(BRIDGE, marks, rings, extra=extra)
     ln, le = ln.reshape(n, g), le.reshape(n, g)
     cons = e2e_consistency(prep.e2e_ohm, prep)
     return marginal_loglik(prep, ln, le, cons, s_index), ln, le, ring
@@ -201,7 +199,7 @@ def _series_eval(prep: Prepared, conductor: str, ring: np.ndarray, x: np.ndarray
     series = np.full((n * g, 3, 2), 1.0 / SHORT_OHM)
     series[:, CONDUCTOR_INDEX[conductor], 1] = series_value_s
     rings = np.tile(ring, (n * g, 1))
-    ln, le = _steps(_SPLIT, marks, rings, series=series)
+    ln, le = _steps(SPLIT, marks, rings, series=series)
     ln, le = ln.reshape(n, g), le.reshape(n, g)
     return marginal_loglik(prep, ln, le, cons, s_index), ln, le
 

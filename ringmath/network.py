@@ -16,8 +16,9 @@ J ohms, 0 for a break. *Extra* edges join the left sides of two marks in every c
 * ``service``: all four line and cpc ends joined at the board, read L–cpc: the in-service
   R1+R2 at the mark.
 
-Every reading is the effective resistance found by nodal analysis (``ringmath.nodal``);
-closed forms such as ``(r1*rn + t(1-t)(r1-rn)^2)/(r1+rn)`` are only used in the tests.
+Every reading here is the effective resistance found by nodal analysis (``ringmath.nodal``):
+the reference. The fitting evaluates its layouts by the closed-form star reduction of
+``ringmath.star``, which the tests check against this solver on random networks.
 """
 
 from __future__ import annotations
@@ -42,6 +43,8 @@ _STEPS = {
     "service": (("line", "cpc"), ((0, 0, 0, 1), (0, 0, 1, 0), (0, 0, 1, 1)), "mark"),
 }
 STEPS = tuple(_STEPS)
+#: step -> the conductors its network holds (line first)
+STEP_CONDUCTORS = {step: spec[0] for step, spec in _STEPS.items()}
 
 
 @dataclass(frozen=True)
@@ -83,6 +86,29 @@ def _node_tables(layout: Layout) -> tuple[np.ndarray, np.ndarray]:
     return np.array(left), np.array(right)
 
 
+def checked_inputs(layout: Layout, step: str, positions, ring_ohm, series_s=None,
+                   extra_fraction=None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """The inputs of a step reading as arrays (positions (B, n_marks), ring_ohm (B, 3),
+    series_s (B, 3, n_marks), extra_fraction (B, extras)), defaults filled in: ideal links,
+    no bridging cable. Raises ValueError naming the field that is wrong."""
+    if step not in _STEPS:
+        raise ValueError(f"step: {step!r} is not one of {', '.join(STEPS)}")
+    pos = np.asarray(positions, dtype=float)
+    if pos.ndim != 2 or pos.shape[1] != layout.n_marks:
+        raise ValueError("positions: expected shape (batch, n_marks)")
+    if np.any(pos < 0) or np.any(pos > 1):
+        raise ValueError("positions: fractions must lie between 0 and 1")
+    batch = pos.shape[0]
+    ring = np.asarray(ring_ohm, dtype=float).reshape(batch, 3)
+    if np.any(ring <= 0):
+        raise ValueError("ring_ohm: cable resistances must be positive")
+    if series_s is None:
+        series_s = np.full((batch, 3, layout.n_marks), 1.0 / SHORT_OHM)
+    if extra_fraction is None:
+        extra_fraction = np.zeros((batch, len(layout.extras)))
+    return pos, ring, np.asarray(series_s, dtype=float), np.asarray(extra_fraction, dtype=float)
+
+
 def step_resistance(layout: Layout, step: str, positions: np.ndarray, ring_ohm: np.ndarray,
                     series_s: np.ndarray | None = None,
                     extra_fraction: np.ndarray | None = None) -> np.ndarray:
@@ -97,23 +123,10 @@ def step_resistance(layout: Layout, step: str, positions: np.ndarray, ring_ohm: 
     ring's resistance, the same fraction in every conductor.
     Returns (B,) ohms; inf where the measured nodes are not connected.
     """
-    if step not in _STEPS:
-        raise ValueError(f"step: {step!r} is not one of {', '.join(STEPS)}")
+    pos, ring, series_s, extra_fraction = checked_inputs(layout, step, positions, ring_ohm,
+                                                         series_s, extra_fraction)
     conductors, joins, probe_kind = _STEPS[step]
-    pos = np.asarray(positions, dtype=float)
-    if pos.ndim != 2 or pos.shape[1] != layout.n_marks:
-        raise ValueError("positions: expected shape (batch, n_marks)")
-    if np.any(pos < 0) or np.any(pos > 1):
-        raise ValueError("positions: fractions must lie between 0 and 1")
     batch = pos.shape[0]
-    ring = np.asarray(ring_ohm, dtype=float).reshape(batch, 3)
-    if np.any(ring <= 0):
-        raise ValueError("ring_ohm: cable resistances must be positive")
-    if series_s is None:
-        series_s = np.full((batch, 3, layout.n_marks), 1.0 / SHORT_OHM)
-    if extra_fraction is None:
-        extra_fraction = np.zeros((batch, len(layout.extras)))
-
     left, right = _node_tables(layout)
     block = layout.nodes_per_conductor()
     order = np.argsort(pos, axis=1)

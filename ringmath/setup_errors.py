@@ -36,7 +36,7 @@ from ringmath.likelihood import (
     marginal_loglik,
     t_grid,
 )
-from ringmath.network import Layout, step_resistance
+from ringmath.star import PLAIN, step_readings
 
 #: Prior probability of each kind of set-up error (our working figures); the rest is "none".
 SETUP_PRIORS = {"leads": 0.08, "offset_r": 0.02, "offset_ln": 0.025, "offset_le": 0.025,
@@ -58,7 +58,6 @@ _LOG_SCALE = np.arange(np.log(0.33), np.log(3.0) + 1e-9, 0.015)
 SCALE_GRID = np.exp(_LOG_SCALE[np.abs(_LOG_SCALE) >= np.log(1.25)])
 #: Positions on which the sound ring is evaluated for the search.
 G_SETUP = 24
-_PLAIN = Layout(1, (False,))
 
 
 @dataclass(frozen=True)
@@ -123,8 +122,8 @@ def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
     t = t_grid(G_SETUP)
     marks = np.tile(t, len(rings_d))[:, None]
     rings = np.repeat(e2e[None, :] - rings_d[:, None], G_SETUP, axis=0)
-    base_ln = step_resistance(_PLAIN, "ln", marks, rings).reshape(len(rings_d), G_SETUP)
-    base_le = step_resistance(_PLAIN, "le", marks, rings).reshape(len(rings_d), G_SETUP)
+    base_ln = step_readings(PLAIN, "ln", marks, rings).reshape(len(rings_d), G_SETUP)
+    base_le = step_readings(PLAIN, "le", marks, rings).reshape(len(rings_d), G_SETUP)
     which = np.searchsorted(rings_d, d_r)
     gain = np.array([r[5] for r in rows])[:, None]
     pred_ln = (1 + gain) * base_ln[which] + np.array([r[3] for r in rows])[:, None]
