@@ -16,6 +16,13 @@ Finding-code conventions the benchmark relies on (the diagnosis names its codes 
   ``readings_inconsistent`` -> any set-up error);
 * metallic cpc / parallel earth path: ``METALLIC_CODES``.
 
+An outlet's OL readings that two explanations predict exactly alike (``diagnose.TIE_CODES``:
+swapped terminals, or one conductor not connected there) are reported as two findings on that
+outlet, each saying the readings cannot tell them apart and giving the one check that does.
+The readings cannot separate them, so a true fault named by the tied partner of a leading
+finding counts as the right class; ``tie_only`` marks the cases right only that way (the
+benchmark prints how many).
+
 A set-up error is scored "named as such" when the verdict is ``"retest"`` or the leading
 finding (the first in the result's list) is a set-up finding.
 """
@@ -24,6 +31,7 @@ from __future__ import annotations
 
 import math
 
+from ringmath.diagnose import TIE_CODES
 from ringmath.simulate import FAULT_CODES
 
 FAULTS = set(FAULT_CODES)
@@ -112,6 +120,14 @@ def located(f: dict, fault) -> bool:
     return got == want
 
 
+def _tied(wiring: list[dict], top: list[dict]) -> list[dict]:
+    """The findings that are the declared exact tie of one in ``top`` (same single outlet)."""
+    return [f for f in wiring if f not in top and f["code"] in TIE_CODES
+            and len(f["outlets"]) == 1
+            and any(t["code"] in TIE_CODES and t["code"] != f["code"]
+                    and t["outlets"] == f["outlets"] for t in top)]
+
+
 def _wiring(result: dict) -> list[dict]:
     return [f for f in result["findings"] if f["code"] in FAULTS
             and f["severity"] in ("fault", "warning")]
@@ -155,7 +171,10 @@ def score(result: dict, truth, record: dict, hand: bool) -> dict:
     named = result["verdict"] == "retest" or (first is not None and (
         setup_kind(first["code"]) is not None))
     faults = truth.faults
-    hit = [any(matches(f, fault) for f in top) for fault in faults]
+    strict = [any(matches(f, fault) for f in top) for fault in faults]
+    tied = _tied(wiring, top)
+    hit = [h or any(matches(f, fault) for f in tied) for h, fault in zip(strict, faults,
+                                                                         strict=True)]
     placed = []
     for fault in faults:
         match = next((f for f in wiring if matches(f, fault)), None)
@@ -177,6 +196,7 @@ def score(result: dict, truth, record: dict, hand: bool) -> dict:
         "metallic_named": any(f["code"] in METALLIC_CODES for f in result["findings"]),
         "right": bool(faults) and (any(hit) or (bool(setup) and named)),
         "right_all": bool(faults) and all(hit),
+        "tie_only": bool(faults) and any(hit) and not any(strict),
         "locatable": bool(placed), "located": bool(placed) and all(placed),
         "visible": bool(faults) and truth.signal_ohm >= max(VISIBLE_OHM, 3 * sd),
         "hand": hand,

@@ -134,6 +134,10 @@ def print_condition(cond: Condition, rows: list[dict], seconds: float) -> dict:
         print(f"  {code or 'all faults':24} {len(r):4} {pct(r, 'flagged'):>9} {pct(r, 'right'):>8}"
               f" {pct(r, 'right_all'):>9} {pct(loc, 'located'):>9} {pct(r, 'hand'):>9} |"
               f" {len(v):11} {pct(v, 'flagged'):>9} {pct(v, 'right'):>8}")
+    ties = sum(x["tie_only"] for x in faulty)
+    if ties:
+        print(f"  right only by a declared exact tie (OL at one outlet: swapped terminals or a"
+              f" core not connected): {ties} of {len(faulty)}")
     claims = [r["claim"] for r in rows if r["claim"] and r["claim"][1] is not None]
     table, brier = calibration(claims)
     cells = "  ".join(f"{int(100 * lo)}-{min(int(100 * hi), 100)}: {obs * 100:3.0f}%/{cnt}"

@@ -61,3 +61,30 @@ def test_a_case_is_scored_against_its_truth():
     assert claim_correct({**named_bridge, "code": "unrecorded_spur"}, truth) is False
     assert claim_correct({**named_bridge, "code": "lead_offset"}, truth) is False
     assert claim_correct({**named_bridge, "code": "zs_over_limit"}, truth) is None
+
+
+@pytest.mark.parametrize("conductor", ["line", "neutral", "cpc"])
+def test_a_core_off_its_terminal_is_right_by_its_declared_tie_only(conductor):
+    # One core off its terminal at an outlet reads OL there exactly as swapped terminals do
+    # (the OL pattern of the two is the same by the network model); the tied partner names it.
+    record, truth = simulate(np.random.default_rng(5), "open_conductor", at="terminal",
+                             conductor=conductor)
+    result = diagnose(record)
+    codes = {f["code"] for f in result["findings"] if f["outlets"] == list(truth.outlets)}
+    assert {"reversed_polarity", "open_conductor"} <= codes
+    row = score(result, truth, record, hand_rule(record))
+    assert row["right"]
+    lead = next(f for f in result["findings"] if f["code"] in ("reversed_polarity",
+                                                              "open_conductor"))
+    assert row["tie_only"] == (lead["code"] != "open_conductor")
+
+
+def test_a_tie_does_not_make_another_outlet_right():
+    # The partner must be on the lead's own outlet: a reversed outlet elsewhere is no tie.
+    record, truth = simulate(np.random.default_rng(5), "open_conductor", at="terminal",
+                             conductor="cpc")
+    result = diagnose(record)
+    other = "zz"
+    result["findings"] = [dict(f, outlets=[other]) if f["code"] == "open_conductor" else f
+                          for f in result["findings"]]
+    assert not score(result, truth, record, hand_rule(record))["right"]
