@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import os
+
 import pytest
 
 RING = {"r1": "0.52", "rn": "0.52", "r2": "0.86"}
@@ -199,6 +201,30 @@ def test_one_failing_circuit_does_not_stop_the_thread(bg_app, monkeypatch):
     queue.submit(circuit_id)
     assert queue.wait_idle(30)
     assert seen == [circuit_id, circuit_id]
+
+
+@pytest.mark.skipif(not hasattr(os, "getpriority"), reason="no per-thread priority here")
+def test_the_diagnosis_thread_yields_the_cores_to_the_requests(bg_app, monkeypatch):
+    """The background thread runs NICE_STEPS lower than the thread that saved; the saving
+    thread's own priority is untouched (Linux schedules each thread on its own)."""
+    import threading
+
+    from fieldapp import background, records
+
+    seen = {}
+    real = records.diagnose_circuit
+
+    def noting(circuit):
+        seen["nice"] = os.getpriority(os.PRIO_PROCESS, threading.get_native_id())
+        return real(circuit)
+
+    monkeypatch.setattr(records, "diagnose_circuit", noting)
+    mine = os.getpriority(os.PRIO_PROCESS, threading.get_native_id())
+    queue = background.Background(bg_app, coalesce_s=0.0)  # a new thread: the priority is set
+    queue.submit(_bg_circuit(bg_app))                        # when a thread starts
+    assert queue.wait_idle(30)
+    assert seen["nice"] == min(mine + background.NICE_STEPS, 19)
+    assert os.getpriority(os.PRIO_PROCESS, threading.get_native_id()) == mine
 
 
 @pytest.mark.parametrize("mode", ["", "threads", "Inline "])
