@@ -178,6 +178,6 @@ def detection_limit(prep: Prepared, contact_sd: float, live_csa_mm2: float) -> F
     spur_line_ohm = DETECT_SIGMAS * sigma / np.sqrt(4.0 + (1.0 + k) ** 2)
     spur_m = spur_line_ohm / (resistance_mohm_per_m(live_csa_mm2) / 1000.0)
     msg, nxt = setup_messages.detection_limit(sigma, joint, spur_m,
-                                              _bridge_across_one_m(prep, sigma))
+                                              _bridge_across_one_m(prep, sigma), prep.cpc_free)
     return Finding("detection_limit", "info", msg, nxt)
 

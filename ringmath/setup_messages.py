@@ -96,8 +96,10 @@ def socket_contact(outlets: list[str], front: bool) -> tuple[str, str]:
 
 
 def detection_limit(scatter_ohm: float, joint_ohm: float, spur_m: float,
-                    bridge_m: float | None) -> tuple[str, str]:
-    """What a satisfactory result cannot rule out, from the readings' own scatter."""
+                    bridge_m: float | None, cpc_free: bool = False) -> tuple[str, str]:
+    """What a satisfactory result cannot rule out, from the readings' own scatter. cpc_free:
+    the cpc is not the cable's core alone (metallic containment, armour or parallel earth
+    paths), so the cpc's own continuity is hidden by the parallel metal (common practice)."""
     bridge = ("a bridge between neighbouring outlets (no outlet between its ends) cannot be seen "
               "at all by this test, whatever its length")
     if bridge_m is not None:
@@ -108,4 +110,10 @@ def detection_limit(scatter_ohm: float, joint_ohm: float, spur_m: float,
            f"unrecorded spur shorter than about {spur_m:.0f} m would not show either.")
     nxt = ("Where a hidden bridge or spur matters, inspect the outlets (count the cables in each "
            "box) rather than relying on the readings.")
+    if cpc_free:
+        msg += (" The cpc here is not the cable's core alone (metal containment or parallel "
+                "earth paths), so step 3 cannot show a break or poor joint in the cpc core, and "
+                "faults on line and neutral are judged from steps 1 and 2 only.")
+        nxt += (" Check each accessory's cpc connection by inspection, and measure Zs at every "
+                "outlet with the supply on.")
     return msg, nxt

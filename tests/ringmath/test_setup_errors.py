@@ -175,6 +175,17 @@ def test_sound_result_states_what_it_cannot_see():
     assert result["verdict"] == "satisfactory"
     limit = next(f for f in result["findings"] if f["code"] == "detection_limit")
     assert "neighbouring outlets" in limit["message"] and "cannot be seen" in limit["message"]
+    assert "cpc core" not in limit["message"]  # a cable-core cpc is checked by step 3
+
+
+@pytest.mark.parametrize("circuit", [{"cpc_kind": "conduit"}, {"parallel_paths": True}])
+def test_a_sound_result_on_a_metallic_or_parallel_cpc_says_step_3_cannot_check_the_cpc(circuit):
+    # Common practice: metal containment or bonded metalwork in parallel with the cpc core
+    # carries the test current, so a break in the core does not show in r2 or step 3.
+    result = diagnose(_record(10, **circuit))
+    limit = next(f for f in result["findings"] if f["code"] == "detection_limit")
+    assert "cannot show a break or poor joint in the cpc core" in limit["message"]
+    assert "Zs at every outlet" in limit["next_check"]
 
 
 @pytest.mark.parametrize(("add", "kind"), [
