@@ -259,8 +259,10 @@ def diagnose(record, *, calibrate: bool = True) -> dict:
                                  -(f.confidence or 0.0)))
     if fit_part.get("healthy") and complete(test) and not any(
             f.severity in ("fault", "warning") for f in findings):
-        limit = explain.detection_limit(fit_part["prep"], fit_part["contact_sd"],
-                                        test.circuit.live_csa_mm2)
+        # the parallel-path finding, where r2 shows one, already says what it hides
+        limit = explain.detection_limit(
+            fit_part["prep"], fit_part["contact_sd"], test.circuit.live_csa_mm2,
+            cpc_caveat=not any(f.code == "parallel_earth_path" for f in findings))
         if limit is not None:
             findings.append(limit)
     circuit, points = zs_values

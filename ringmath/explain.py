@@ -166,8 +166,10 @@ def _bridge_across_one_m(prep: Prepared, sigma_ohm: float) -> float | None:
     return float(fractions[seen].max() * length_m)
 
 
-def detection_limit(prep: Prepared, contact_sd: float, live_csa_mm2: float) -> Finding | None:
-    """The smallest fault per class these readings could reveal, from their scatter."""
+def detection_limit(prep: Prepared, contact_sd: float, live_csa_mm2: float,
+                    cpc_caveat: bool = True) -> Finding | None:
+    """The smallest fault per class these readings could reveal, from their scatter; with
+    ``cpc_caveat`` and a cpc that is not the cable's alone, also what step 3 cannot show."""
     r1, rn, r2 = prep.e2e_ohm
     if not np.all(np.isfinite(prep.e2e_ohm)) or r1 <= 0:
         return None
@@ -178,6 +180,7 @@ def detection_limit(prep: Prepared, contact_sd: float, live_csa_mm2: float) -> F
     spur_line_ohm = DETECT_SIGMAS * sigma / np.sqrt(4.0 + (1.0 + k) ** 2)
     spur_m = spur_line_ohm / (resistance_mohm_per_m(live_csa_mm2) / 1000.0)
     msg, nxt = setup_messages.detection_limit(sigma, joint, spur_m,
-                                              _bridge_across_one_m(prep, sigma), prep.cpc_free)
+                                              _bridge_across_one_m(prep, sigma),
+                                              prep.cpc_free and cpc_caveat)
     return Finding("detection_limit", "info", msg, nxt)
 

@@ -188,6 +188,15 @@ def test_a_sound_result_on_a_metallic_or_parallel_cpc_says_step_3_cannot_check_t
     assert "Zs at every outlet" in limit["next_check"]
 
 
+def test_the_cpc_caveat_is_said_once_where_r2_already_shows_the_parallel_path():
+    record = _record(10, cpc_kind="conduit")
+    record["end_to_end"]["r2"] = 0.05  # the conduit in parallel: r2 far below the cable's
+    codes = {f["code"]: f for f in diagnose(record)["findings"]}
+    assert "parallel_earth_path" in codes and "detection_limit" in codes
+    assert "cannot prove the cpc is continuous" in codes["parallel_earth_path"]["message"]
+    assert "cpc core" not in codes["detection_limit"]["message"]
+
+
 @pytest.mark.parametrize(("add", "kind"), [
     ({"ln_add": 0.10, "le_add": 0.10, "e2e_add": 0.10}, "leads"),
     ({"scale": 2.0}, "scale")])
