@@ -65,8 +65,9 @@ class Setup:
     """One set-up error: kind (see module doc), offset_ohm d, gain g (steps 2-3 read
     (1 + g) x what step 1 implies). log_cost: log prior of the kind + the Occam factor of its
     parameter (<= 0). vs_none: its evidence under a sound ring minus "as read" (nats).
-    p_beyond: posterior probability (over the kind's grid) that the offset is beyond
-    OFFSET_TOLERATED_OHM either way: the readings then have to be re-taken. p_kind: this kind's
+    p_beyond: posterior probability (over the kind's grid, allowing for step 1's own scatter:
+    ``_step1_share``) that the offset is beyond OFFSET_TOLERATED_OHM either way: the readings
+    then have to be re-taken. p_kind: this kind's
     share of the posterior of all set-up kinds (under a sound ring): what a finding naming the
     kind multiplies the probability of "some set-up error" by."""
 
@@ -109,6 +110,22 @@ def _variants(e2e: np.ndarray) -> list[tuple[str, float, float, float, float, fl
     return rows
 
 
+def _step1_share(prep: Prepared, kind: str) -> float:
+    """How much of the readings' evidence on an offset survives step 1's own scatter.
+
+    The sound ring's step 2 and 3 readings are predicted from the recorded r1, rn and r2, so
+    the scatter of those three readings shifts every prediction alike: (r1 + rn)/4 carries
+    an error of sd sigma·sqrt(2)/4 (sigma: one reading's scatter, the same for step 1 as for
+    the outlets' readings) that no number of outlet readings averages away. An offset seen in
+    the mean of N outlet readings (a shift of d/2 for leads not nulled or an offset on step 1,
+    d for one of steps 2-3) then has variance 4·sigma²/N + sigma²/2 (d/2 kinds) or
+    sigma²/N + sigma²/8 (one step) instead of the first term alone: the log-likelihood over
+    d is flattened by the ratio, 8 / (8 + N) in both cases (Gaussian approximation)."""
+    n_ln, n_le = int(np.isfinite(prep.ln_ohm).sum()), int(np.isfinite(prep.le_ohm).sum())
+    n = {"offset_ln": n_ln, "offset_le": n_le}.get(kind, n_ln + n_le)
+    return 8.0 / (8.0 + max(n, 1))
+
+
 def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
     """The most probable set-up error under a sound ring, or None when step 1 cannot be
     modelled (a reading missing, OL or not positive). The search runs at contact sd
@@ -143,20 +160,26 @@ def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
         evidence = float(log_mean_exp(ll[sel])) + np.log(prior)
         evidences.append(evidence)
         top = int(sel[np.argmax(ll[sel])])
-        params = np.array([rows[i][1] for i in sel])
-        w = np.exp(ll[sel] - ll[sel].max())
-        beyond = float(w[np.abs(params) > OFFSET_TOLERATED_OHM + 1e-9].sum() / w.sum())
         cand = Setup(kind, float(rows[top][1]) if kind not in ("gain", "scale") else 0.0,
-                     float(rows[top][5]), evidence - float(ll[top]), evidence - none,
-                     beyond if kind not in ("gain", "scale") else 0.0)
+                     float(rows[top][5]), evidence - float(ll[top]), evidence - none)
         if best is None or cand.vs_none > best.vs_none:
-            best = cand
+            best, best_rows = cand, sel
     if best is None:
         return None
     ev = np.array(evidences)
     # share of the best kind: exp(its evidence) / sum over kinds (log-sum-exp for safety)
     share = np.exp(best.vs_none + none - ev.max()) / np.exp(ev - ev.max()).sum()
-    return replace(best, p_kind=float(min(share, 1.0)))
+    beyond = 0.0
+    if best.kind not in ("gain", "scale"):
+        # how far the offset is: its rows again with the scatter integrated (the search's sd
+        # is the sound ring's as read, which an offset left in the readings inflates) and
+        # step 1's own scatter allowed for
+        ll_k = marginal_loglik(prep, pred_ln[best_rows], pred_le[best_rows],
+                               cons_d[:, which[best_rows]])
+        params = np.array([rows[i][1] for i in best_rows])
+        w = np.exp(_step1_share(prep, best.kind) * (ll_k - ll_k.max()))
+        beyond = float(w[np.abs(params) > OFFSET_TOLERATED_OHM + 1e-9].sum() / w.sum())
+    return replace(best, p_kind=float(min(share, 1.0)), p_beyond=beyond)
 
 
 def correct(prep: Prepared, setup: Setup) -> Prepared:
