@@ -5,8 +5,9 @@ streams per condition key) with a seed other than the one the benchmark reports 
 the benchmark reports 2026), collects each case's leading claim (stated confidence, whether it
 is true of the simulated test) with the calibration switched off, and fits Platt scaling
 (Platt 1999, "Probabilistic outputs for support vector machines"): observed = sigmoid(a·logit(
-stated) + b), by maximum likelihood (Newton's method on the logistic log-likelihood). Prints
-the claims per bin before and after and the fitted a, b to copy into ringmath/calibration.py.
+stated) + b), by maximum likelihood (Newton's method on the logistic log-likelihood), one map
+per basis of the leading claim (whole-ring fit, outlet, set-up). Prints the claims per bin
+before and after and the fitted maps to copy into ringmath/calibration.py.
 
 Run: ``.venv/bin/python bench/diag_calibrate.py [--seed 7] [--n 8] [--conditions ...]``.
 """
@@ -26,6 +27,11 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from diag_conditions import BY_KEY, CONDITIONS  # noqa: E402
 from diag_scoring import calibration  # noqa: E402
 from diagnosis import run_condition  # noqa: E402
+
+from ringmath.findings import BASES  # noqa: E402
+
+#: A basis with fewer leading claims than this keeps the identity map (too few to fit).
+MIN_CLAIMS = 40
 
 
 def fit_platt(stated: np.ndarray, ok: np.ndarray, iters: int = 50) -> tuple[float, float]:
@@ -57,21 +63,31 @@ def main() -> None:
     parser.add_argument("--conditions", default="")
     args = parser.parse_args()
     keys = [k for k in args.conditions.split(",") if k] or [c.key for c in CONDITIONS]
-    claims = []
+    claims: dict[str, list] = {basis: [] for basis in BASES}
     for key in keys:
         rng = np.random.default_rng([args.seed, zlib.crc32(key.encode())])
         rows = run_condition(BY_KEY[key], rng, args.n, 4 * args.n, calibrate=False)
-        claims += [r["claim"] for r in rows if r["claim"] and r["claim"][1] is not None]
-    stated = np.clip(np.array([c for c, _ in claims]), 1e-3, 1 - 1e-3)
-    ok = np.array([float(o) for _, o in claims])
-    a, b = fit_platt(stated, ok)
+        for r in rows:
+            if r["claim"] and r["claim"][1] is not None:
+                claims[r["claim_basis"]].append(r["claim"])
     print(f"seed {args.seed}, n {args.n}, conditions {','.join(keys)}")
-    print("before (uncalibrated):")
-    table(claims)
-    after = 1 / (1 + np.exp(-(a * np.log(stated / (1 - stated)) + b)))
-    print("after (fitted map, no cap):")
-    table(list(zip(after.tolist(), [bool(o) for o in ok], strict=True)))
-    print(f"PLATT_A = {a:.3f}\nPLATT_B = {b:.3f}")
+    fitted = {}
+    for basis, some in claims.items():
+        if len(some) < MIN_CLAIMS:
+            print(f"{basis}: {len(some)} claims, fewer than {MIN_CLAIMS}: keep the identity map")
+            fitted[basis] = (1.0, 0.0)
+            continue
+        stated = np.clip(np.array([c for c, _ in some]), 1e-3, 1 - 1e-3)
+        ok = np.array([float(o) for _, o in some])
+        a, b = fit_platt(stated, ok)
+        fitted[basis] = (a, b)
+        print(f"{basis}: before (uncalibrated):")
+        table(some)
+        after = 1 / (1 + np.exp(-(a * np.log(stated / (1 - stated)) + b)))
+        print(f"{basis}: after (fitted map, no cap):")
+        table(list(zip(after.tolist(), [bool(o) for o in ok], strict=True)))
+    print("PLATT = {" + ", ".join(f'"{k}": ({a:.3f}, {b:.3f})' for k, (a, b) in fitted.items())
+          + "}")
 
 
 if __name__ == "__main__":

@@ -23,6 +23,10 @@ The readings cannot separate them, so a true fault named by the tied partner of 
 finding counts as the right class; ``tie_only`` marks the cases right only that way (the
 benchmark prints how many).
 
+In the calibration tables such a pair is one claim: its stated confidence is the pair's sum
+(the probability the diagnosis gives "one of these two") and it is true when either is; the
+split between the two is by the explanations' priors, not by the readings.
+
 A set-up error is scored "named as such" when the verdict is ``"retest"`` or the leading
 finding (the first in the result's list) is a set-up finding.
 """
@@ -50,8 +54,13 @@ METALLIC_CODES = {"parallel_earth_path", "metallic_cpc", "cpc_metallic"}
 #: A lead offset up to this (ohms, either sign) leaves a sound ring satisfactory: it is part
 #: of the "typical site". Beyond it the readings must be re-taken (named as a set-up error).
 LEAD_TOLERATED_OHM = 0.05
-#: A fault is "above the limit" when its noise-free signal (Truth.signal_ohm) reaches this
-#: and three times the contact scatter (0.05 Ω: the hand rule's own tolerance).
+#: A fault is "above the stated limit" when its noise-free signal (Truth.signal_ohm, the
+#: largest departure of a noise-free reading from every sound ring) reaches both this (0.05 Ω:
+#: the hand rule's own tolerance) and the least departure the result itself says a fault
+#: must cause to be seen (``result["detection"]["reading_ohm"]``, from the scatter the
+#: diagnosis estimated on those readings): the benchmark checks the app's statement of what
+#: it cannot see. "Above the fixed limit" (the earlier measure, printed beside it): this and
+#: three times the simulated contact scatter.
 VISIBLE_OHM = 0.05
 BINS = ((0.0, 0.5), (0.5, 0.7), (0.7, 0.8), (0.8, 0.9), (0.9, 0.95), (0.95, 1.0001))
 
@@ -139,6 +148,29 @@ def leading_claim(result: dict) -> dict | None:
                  and f["code"] != "look_alike"), None)
 
 
+def tied_partner(result: dict, f: dict) -> dict | None:
+    """The declared exact tie of finding ``f`` (the other explanation of one outlet's OL
+    readings, with a confidence), if the result states one."""
+    if f["code"] not in TIE_CODES or len(f["outlets"]) != 1:
+        return None
+    return next((g for g in result["findings"] if g["code"] in TIE_CODES
+                 and g["code"] != f["code"] and g["outlets"] == f["outlets"]
+                 and g["confidence"] is not None), None)
+
+
+def leading_claim_scored(result: dict, truth) -> tuple[float, bool | None] | None:
+    """The leading claim's stated confidence and whether it is true. A declared exact tie is
+    one claim ("one of these two, the readings cannot tell which"): its confidence is the sum
+    of the pair's, and it is true when either is."""
+    claim = leading_claim(result)
+    if claim is None:
+        return None
+    pair = [claim] + [g for g in [tied_partner(result, claim)] if g is not None]
+    said = [claim_correct(f, truth) for f in pair]
+    ok = None if all(o is None for o in said) else any(bool(o) for o in said)
+    return min(sum(f["confidence"] for f in pair), 1.0), ok
+
+
 def claim_correct(f: dict, truth) -> bool | None:
     """Whether a stated finding is true of the simulated test (None: not scoreable)."""
     if f["code"] in FAULTS:
@@ -158,6 +190,12 @@ def sound_claim(result: dict) -> float | None:
     if hyp and hyp[0]["code"] == "healthy" and not hyp[0].get("local"):
         return hyp[0]["confidence"]
     return None
+
+
+def stated_limit(result: dict) -> float:
+    """The least reading departure (ohms) the result says a fault must cause to be seen; 0
+    where it states none (step 1 not usable: an open reading, which is always seen)."""
+    return float((result.get("detection") or {}).get("reading_ohm") or 0.0)
 
 
 def score(result: dict, truth, record: dict, hand: bool) -> dict:
@@ -198,9 +236,12 @@ def score(result: dict, truth, record: dict, hand: bool) -> dict:
         "right_all": bool(faults) and all(hit),
         "tie_only": bool(faults) and any(hit) and not any(strict),
         "locatable": bool(placed), "located": bool(placed) and all(placed),
-        "visible": bool(faults) and truth.signal_ohm >= max(VISIBLE_OHM, 3 * sd),
+        "visible": bool(faults) and truth.signal_ohm >= max(VISIBLE_OHM, stated_limit(result)),
+        "visible_fixed": bool(faults) and truth.signal_ohm >= max(VISIBLE_OHM, 3 * sd),
+        "signal_ohm": truth.signal_ohm, "stated_limit_ohm": stated_limit(result),
         "hand": hand,
-        "claim": None if claim is None else (claim["confidence"], claim_correct(claim, truth)),
+        "claim": leading_claim_scored(result, truth),
+        "claim_basis": None if claim is None else (claim.get("basis") or "ring"),
         "sound": sound_claim(result) if claim is None else None,
     }
 

@@ -86,7 +86,15 @@ def _named(ids, names: dict) -> list[str]:
 
 def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
                  place: np.ndarray, names: dict) -> Finding:
-    """The whole-ring fault of ``fit`` as a Finding, located where the readings allow."""
+    """The whole-ring fault of ``fit`` as a Finding, located where the readings allow; below
+    ``explain.RING_FAULT_P`` a warning that says a sound ring fits nearly as well."""
+    return explain.doubted(_fit_words(prep, fit, confidence, post, place, names), confidence,
+                           explain.RING_FAULT_P)
+
+
+def _fit_words(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
+               place: np.ndarray, names: dict) -> Finding:
+    """``_fit_finding`` before its severity is graded by confidence."""
     located = fit.theta_sd is not None and fit.theta_sd <= LOCATE_SD.get(fit.code, 0.0)
     if fit.code == "interconnection":
         a, b = fit.theta["a"], fit.theta["b"]
@@ -96,11 +104,11 @@ def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
         inside = [prep.ring_ids[i] for i in range(len(place)) if inside_p[i] > 0.5]
         msg, nxt = messages.interconnection(_named(inside, names), located)
         return Finding("interconnection", "fault", msg, nxt, tuple(inside if located else ()),
-                       confidence=confidence, section=(a, b))
+                       confidence=confidence, section=(a, b), basis="ring")
     if fit.code == "wrong_cross_connection":
         msg, nxt = messages.wrong_cross(fit.step)
         return Finding("wrong_cross_connection", "fault", msg, nxt, step=fit.step,
-                       confidence=confidence)
+                       confidence=confidence, basis="ring")
     x = fit.theta["x"]
     near = _neighbours(prep, post, x) if located else []
     if fit.code == "open_conductor":
@@ -111,7 +119,8 @@ def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
                                   located)
         severity = explain.joint_severity(fit.theta["r_ohm"])
     return Finding(fit.code, severity, msg, nxt, tuple(near), conductor=fit.conductor,
-                   confidence=confidence, position=x if located else None)
+                   confidence=confidence, position=x if located else None,
+                   basis="ring")
 
 
 def _missing_step(prep: Prepared) -> bool:
@@ -134,11 +143,11 @@ def _stated(findings: list[Finding], hypotheses: list[dict], prep: Prepared) -> 
     ``hypotheses`` are restated in place."""
     top = MISSING_STEP_CAP if _missing_step(prep) else CONFIDENCE_CAP
 
-    def stated(p: float) -> float:
-        return min(calibration.calibrated(min(p, 1.0)), top)
+    def stated(p: float, basis: str | None) -> float:
+        return min(calibration.calibrated(min(p, 1.0), basis or "ring"), top)
 
     for h in hypotheses:
-        h["confidence"] = round(stated(h["confidence"]), 3)
+        h["confidence"] = round(stated(h["confidence"], h["basis"]), 3)
     ties: dict[tuple[str, ...], list[int]] = {}
     for i, f in enumerate(findings):
         if f.confidence is not None and f.code in TIE_CODES and len(f.outlets) == 1:
@@ -147,9 +156,10 @@ def _stated(findings: list[Finding], hypotheses: list[dict], prep: Prepared) -> 
     for members in ties.values():
         total = sum(findings[i].confidence or 0.0 for i in members)
         if len(members) > 1 and total > 0:
-            scale.update({i: stated(total) / total for i in members})
+            basis = findings[members[0]].basis
+            scale.update({i: stated(total, basis) / total for i in members})
     return [f if f.confidence is None else replace(
-        f, confidence=f.confidence * scale[i] if i in scale else stated(f.confidence))
+        f, confidence=f.confidence * scale[i] if i in scale else stated(f.confidence, f.basis))
         for i, f in enumerate(findings)]
 
 
@@ -191,7 +201,7 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
             lf.code for lf in best.local if lf.code != "setup_socket_contacts"]
         msg, nxt = setup_messages.many_faults(independent, codes)
         findings = [Finding("setup_readings_inconsistent", "warning", msg, nxt,
-                            confidence=cap(float(weights[0])))] + [
+                            confidence=cap(float(weights[0])), basis="setup")] + [
             replace(f, severity="warning" if f.severity == "fault" else f.severity,
                     confidence=None if f.confidence is None else f.confidence / 2)
             for f in findings]
@@ -202,13 +212,14 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
                            "local": [lf.code for lf in c.local],
                            "setup": None if c.setup is None else c.setup.kind,
                            "confidence": round(cap(float(w)), 3),
-                           "score": round(float(c.score), 2)})
+                           "score": round(float(c.score), 2), "basis": _basis(c)})
     if len(combos) > 1 and combos[0].score - combos[1].score < LOOK_ALIKE_NATS:
         first = _lead_code(combos[0])
         second = _lead_code(combos[1])
         if first != second and "healthy" not in (first, second):
             findings.append(Finding("look_alike", "info", messages.look_alike(first, second),
-                                    confidence=cap(float(weights[1]))))
+                                    confidence=cap(float(weights[1])),
+                                    basis=_basis(combos[1])))
     # A sound ring (or one with crossed ends) reads the same whichever end an outlet is near:
     # its readings give no order to draw. A fault breaks that symmetry and places outlets.
     placed = best_fit.code not in POSITIONLESS
@@ -217,6 +228,16 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
     return {"findings": findings, "hypotheses": hypotheses, "positions": positions,
             "contact_sd": best_fit.contact_sd, "healthy": best_fit.code == "healthy"
             and not best.local, "prep": used}
+
+
+def _basis(combo) -> str:
+    """What a combination's confidence rests on (``findings.BASES``): its whole-ring fault,
+    else its outlet faults, else its set-up error; a sound ring is a whole-ring claim."""
+    if combo.fit.code == "healthy" and combo.local:
+        return "outlet"
+    if combo.fit.code == "healthy" and combo.setup is not None:
+        return "setup"
+    return "ring"
 
 
 def _lead_code(combo) -> str:
@@ -257,14 +278,14 @@ def diagnose(record, *, calibrate: bool = True) -> dict:
     order = {"fault": 0, "warning": 1, "info": 2}
     findings.sort(key=lambda f: (f.code not in LEADING_CODES, order[f.severity],
                                  -(f.confidence or 0.0)))
-    if fit_part.get("healthy") and complete(test) and not any(
+    seen = None if fit_part.get("contact_sd") is None else explain.limits(
+        fit_part["prep"], fit_part["contact_sd"], test.circuit.live_csa_mm2)
+    if seen is not None and fit_part.get("healthy") and complete(test) and not any(
             f.severity in ("fault", "warning") for f in findings):
         # the parallel-path finding, where r2 shows one, already says what it hides
-        limit = explain.detection_limit(
-            fit_part["prep"], fit_part["contact_sd"], test.circuit.live_csa_mm2,
-            cpc_caveat=not any(f.code == "parallel_earth_path" for f in findings))
-        if limit is not None:
-            findings.append(limit)
+        findings.append(explain.detection_limit(
+            seen, fit_part["prep"].cpc_free
+            and not any(f.code == "parallel_earth_path" for f in findings)))
     circuit, points = zs_values
     for p in points:
         pos = fit_part["positions"].get(p["id"])
@@ -284,6 +305,7 @@ def diagnose(record, *, calibrate: bool = True) -> dict:
         "expected": checks.expected(test),
         "readings": checks.reading_checks(test),
         "hypotheses": fit_part["hypotheses"],
+        "detection": None if seen is None else seen.as_dict(),
         "end_to_end": {k: format_reading(getattr(test.end_to_end, f"{k}_ohm"))
                        for k in ("r1", "rn", "r2")},
         "cautions": list(messages.CAUTIONS),

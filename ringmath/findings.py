@@ -6,6 +6,9 @@ from dataclasses import dataclass
 
 SEVERITIES = ("fault", "warning", "info")
 CONDUCTORS = ("line", "neutral", "cpc")
+#: What a fitted confidence rests on: a whole-ring fit, one outlet's readings on top of it, or
+#: the test's own set-up (each calibrated by its own map, ``ringmath.calibration``).
+BASES = ("ring", "outlet", "setup")
 
 
 @dataclass(frozen=True)
@@ -19,7 +22,8 @@ class Finding:
     outlets: ids of the outlets it points at. conductor: "line", "neutral", "cpc" or None.
     step: "ln" (step 2) or "le" (step 3) or None. confidence: 0..1 for fitted hypotheses.
     position: a place around the ring as a fraction 0..1 from end 1; section: (start, end)
-    fractions of a bridged section.
+    fractions of a bridged section. basis: what a fitted confidence rests on (``BASES``), None
+    for a check or rule.
     """
 
     code: str
@@ -32,12 +36,15 @@ class Finding:
     confidence: float | None = None
     position: float | None = None
     section: tuple[float, float] | None = None
+    basis: str | None = None
 
     def __post_init__(self):
         if self.severity not in SEVERITIES:
             raise ValueError(f"severity: {self.severity!r} is not one of {', '.join(SEVERITIES)}")
         if self.conductor is not None and self.conductor not in CONDUCTORS:
             raise ValueError(f"conductor: {self.conductor!r} is not one of {', '.join(CONDUCTORS)}")
+        if self.basis is not None and self.basis not in BASES:
+            raise ValueError(f"basis: {self.basis!r} is not one of {', '.join(BASES)}")
 
     def as_dict(self) -> dict:
         """Plain JSON-able form (the shape listed in DEVELOPERS.md)."""
@@ -52,4 +59,5 @@ class Finding:
             "next_check": self.next_check,
             "position": None if self.position is None else round(float(self.position), 3),
             "section": None if self.section is None else [round(float(s), 3) for s in self.section],
+            "basis": self.basis,
         }

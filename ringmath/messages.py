@@ -149,6 +149,18 @@ def ol_pattern(outlet: str, code: str, conductor: str | None, swap: str | None) 
     return msg, checks[swap or conductor]
 
 
+#: Said after a fitted fault that other explanations fit nearly as well.
+POSSIBLE = (" Other explanations, a sound ring among them, fit these readings nearly as well, so "
+            "this is a check to make before signing off, not an established fault.")
+
+
+def possible_headline(code: str, conductor: str | None = None, step: str | None = None,
+                      outlets=()) -> str:
+    """The headline of a fault the readings suggest but do not establish."""
+    words = headline(code, conductor, step, outlets)
+    return f"Not established, but possible: {words[0].lower()}{words[1:]}"
+
+
 def headline(code: str, conductor: str | None = None, step: str | None = None,
              outlets=()) -> str:
     """A few words for the top of a result: the answer at a glance."""

@@ -5,9 +5,11 @@ no credible fault stands; "investigate" for a credible fault; "incomplete" with 
 missing; else "satisfactory" (which may carry warnings: checks to make).
 
 Agreement (``agree``): a wiring finding stated at CREDIBLE_P or more (the calibrated figure of a
-posterior of 0.9) is a credible fault even where its severity is a warning (a joint under
-0.10 Ω, an outlet read from the front): a satisfactory verdict never sits above it, the verdict
-is "investigate". Under a "retest"
+posterior of 0.9 on the finding's basis) is a credible fault even where its severity is a
+warning (a joint under 0.10 Ω, an outlet read from the front): a satisfactory verdict never
+sits above it, the verdict is "investigate". A fitted fault graded a warning because other
+explanations fit nearly as well heads the summary as "Not established, but possible". Under a
+"retest"
 verdict every wiring finding beneath the lead is a warning and its confidence is scaled by
 (1 − p/2), p the lead's confidence: the readings it was inferred from are themselves in doubt
 (the same halving the diagnosis applies when the best explanation needs too many faults).
@@ -19,7 +21,7 @@ from dataclasses import replace
 
 from ringmath import messages
 from ringmath.calibration import calibrated
-from ringmath.findings import Finding
+from ringmath.findings import BASES, Finding
 from ringmath.record import RingTest
 
 #: Findings that doubt the readings themselves: they lead, and the verdict is "retest".
@@ -36,7 +38,8 @@ WIRING_CODES = frozenset({"interconnection", "open_conductor", "wrong_cross_conn
 #: on the quick typical-site run and called one more healthy ring of 40 "investigate" on the
 #: full one (bench/diagnosis.py --quick --healthy 40, typical 2.5 % -> 5.0 %).
 CREDIBLE_POSTERIOR = 0.9
-CREDIBLE_P = calibrated(CREDIBLE_POSTERIOR)
+#: basis -> the stated figure of CREDIBLE_POSTERIOR on that basis' calibration map.
+CREDIBLE_P = {basis: calibrated(CREDIBLE_POSTERIOR, basis) for basis in BASES}
 
 
 def complete(test: RingTest) -> bool:
@@ -47,9 +50,9 @@ def complete(test: RingTest) -> bool:
 
 
 def credible(f: Finding) -> bool:
-    """A wiring finding stated at CREDIBLE_P or more (any severity but info)."""
+    """A wiring finding stated at CREDIBLE_P of its basis or more (any severity but info)."""
     return (f.code in WIRING_CODES and f.severity in ("fault", "warning")
-            and (f.confidence or 0.0) >= CREDIBLE_P)
+            and (f.confidence or 0.0) >= CREDIBLE_P[f.basis or "ring"])
 
 
 def verdict(test: RingTest, findings: list[Finding]) -> str:
@@ -93,7 +96,8 @@ def agree(test: RingTest, findings: list[Finding]) -> tuple[str, list[Finding]]:
 
 
 def summary(result: str, findings: list[Finding], names: dict[str, str]) -> str:
-    """The headline: the lead of a re-test, else the first fault or credible wiring finding."""
+    """The headline: the lead of a re-test, else the first fault or credible wiring finding,
+    else a whole-ring fault the readings suggest but do not establish."""
     if result == "retest" and findings:
         lead = _retest_lead(findings)
         shown = [names.get(o, o) for o in lead.outlets] if len(lead.outlets) <= 2 else []
@@ -104,6 +108,12 @@ def summary(result: str, findings: list[Finding], names: dict[str, str]) -> str:
         top = faults[0]
         shown = [names.get(o, o) for o in top.outlets] if len(top.outlets) <= 2 else []
         return messages.headline(top.code, top.conductor, top.step, shown)
+    possible = [f for f in findings if f.code in WIRING_CODES and f.severity == "warning"
+                and messages.POSSIBLE in f.message]
+    if possible:
+        top = possible[0]
+        shown = [names.get(o, o) for o in top.outlets] if len(top.outlets) <= 2 else []
+        return messages.possible_headline(top.code, top.conductor, top.step, shown)
     if result == "incomplete":
         return "No fault found so far; the test is not finished."
     if any(f.severity == "warning" for f in findings):

@@ -178,6 +178,50 @@ def test_sound_result_states_what_it_cannot_see():
     assert "cpc core" not in limit["message"]  # a cable-core cpc is checked by step 3
 
 
+def test_every_fitted_result_states_its_limits_and_the_words_use_the_same_figures():
+    from ringmath.explain import DETECT_SIGMAS
+    result = diagnose(_record(10))
+    seen = result["detection"]
+    assert seen["reading_ohm"] == pytest.approx(DETECT_SIGMAS * seen["scatter_ohm"], abs=1e-3)
+    limit = next(f for f in result["findings"] if f["code"] == "detection_limit")
+    assert f"about {seen['scatter_ohm']:.3f} Ω" in limit["message"]
+    assert f"{seen['joint_ohm']:.2f} Ω" in limit["message"]
+    assert f"shorter than about {seen['spur_m']:.0f} m" in limit["message"]
+    # a faulty result states its limits too (what the benchmark checks them against)
+    broken = _record(10)
+    broken["outlets"][4]["ln"] = 0.45
+    broken["outlets"][4]["le"] = 0.55
+    assert diagnose(broken)["detection"]["reading_ohm"] > 0
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_noisier_readings_state_larger_limits(seed):
+    # physical invariant: a fault has to move a reading further to stand out of more scatter
+    rng = np.random.default_rng([seed, 5])
+    quiet = _record(12)
+    noisy = _record(12)
+    for o in noisy["outlets"]:
+        o["ln"] = round(o["ln"] + float(rng.normal(0, 0.03)), 2)
+        o["le"] = round(o["le"] + float(rng.normal(0, 0.03)), 2)
+    a, b = diagnose(quiet)["detection"], diagnose(noisy)["detection"]
+    assert b["scatter_ohm"] > a["scatter_ohm"]
+    assert b["reading_ohm"] > a["reading_ohm"] and b["spur_m"] > a["spur_m"]
+    assert b["joint_ohm"] >= a["joint_ohm"]
+
+
+def test_the_offset_allows_for_step_one_scatter():
+    # (r1+rn)/4 carries step 1's own scatter into every prediction: the evidence on an offset
+    # from N outlet readings is flattened by 8/(8+N) (Gaussian approximation), so more outlets
+    # sharpen it less than 1/N would say
+    from ringmath.likelihood import prepare
+    from ringmath.record import parse_record
+    from ringmath.setup_errors import _step1_share
+    few, many = (prepare(parse_record(_record(n))) for n in (4, 16))
+    assert _step1_share(few, "leads") == pytest.approx(8 / 16)
+    assert _step1_share(many, "leads") == pytest.approx(8 / 40)
+    assert _step1_share(many, "offset_ln") == pytest.approx(8 / 24)
+
+
 @pytest.mark.parametrize("circuit", [{"cpc_kind": "conduit"}, {"parallel_paths": True}])
 def test_a_sound_result_on_a_metallic_or_parallel_cpc_says_step_3_cannot_check_the_cpc(circuit):
     # Common practice: metal containment or bonded metalwork in parallel with the cpc core
