@@ -140,6 +140,9 @@ def leading(diagnosis: dict | None) -> dict | None:
     return {
         "verdict": verdict,
         "verdict_words": verdict_word(verdict),
+        # satisfactory, yet a check stands (a warning leads): not shown as a plain pass
+        "checks": verdict == "satisfactory" and top is not None
+        and top.get("severity") == "warning",
         "zs_lines": state["lines"],
         "summary": summary,
         "finding": top,

@@ -180,3 +180,16 @@ def test_a_missing_earth_is_named_before_swapped_terminals_that_fit_as_well():
     assert (first["code"], first.get("conductor")) == ("open_conductor", "cpc")
     shown = answer.as_shown(diag)
     assert shown["findings"][0] is first and shown["summary"] == first["message"]
+
+
+def test_a_satisfactory_result_with_a_check_to_make_is_not_shown_as_a_plain_pass():
+    # a sound-looking ring whose leading finding is a warning: the answer says checks remain
+    plain = {"verdict": "satisfactory", "summary": "The readings fit a sound ring.",
+             "findings": [{"code": "detection_limit", "severity": "info", "message": "m",
+                           "outlets": [], "confidence": None}], "points": [], "circuit": {}}
+    checked = {**plain, "findings": [{"code": "wrong_cross_connection", "severity": "warning",
+                                      "message": "possible", "outlets": [], "step": "ln",
+                                      "confidence": 0.6}] + plain["findings"]}
+    assert answer.leading(plain)["checks"] is False
+    assert answer.leading(checked)["checks"] is True
+    assert answer.leading({**checked, "verdict": "investigate"})["checks"] is False
