@@ -65,7 +65,7 @@ def doubted(f: Finding, posterior: float, threshold: float) -> Finding:
     its posterior is under ``threshold`` (RING_FAULT_P, OUTLET_FAULT_P); else ``f``."""
     if f.severity != "fault" or posterior >= threshold:
         return f
-    return replace(f, severity="warning", message=f.message + messages.POSSIBLE)
+    return replace(f, severity="warning", message=f.message + messages.POSSIBLE, possible=True)
 
 
 def ratios_text(prep: Prepared) -> str:

@@ -23,7 +23,8 @@ class Finding:
     step: "ln" (step 2) or "le" (step 3) or None. confidence: 0..1 for fitted hypotheses.
     position: a place around the ring as a fraction 0..1 from end 1; section: (start, end)
     fractions of a bridged section. basis: what a fitted confidence rests on (``BASES``), None
-    for a check or rule.
+    for a check or rule. possible: a fitted fault graded down to a warning because other
+    explanations fit the readings nearly as well (suggested, not established).
     """
 
     code: str
@@ -37,6 +38,7 @@ class Finding:
     position: float | None = None
     section: tuple[float, float] | None = None
     basis: str | None = None
+    possible: bool = False
 
     def __post_init__(self):
         if self.severity not in SEVERITIES:
@@ -60,4 +62,5 @@ class Finding:
             "position": None if self.position is None else round(float(self.position), 3),
             "section": None if self.section is None else [round(float(s), 3) for s in self.section],
             "basis": self.basis,
+            "possible": self.possible,
         }

@@ -108,8 +108,7 @@ def summary(result: str, findings: list[Finding], names: dict[str, str]) -> str:
         top = faults[0]
         shown = [names.get(o, o) for o in top.outlets] if len(top.outlets) <= 2 else []
         return messages.headline(top.code, top.conductor, top.step, shown)
-    possible = [f for f in findings if f.code in WIRING_CODES and f.severity == "warning"
-                and messages.POSSIBLE in f.message]
+    possible = [f for f in findings if f.possible and f.severity == "warning"]
     if possible:
         top = possible[0]
         shown = [names.get(o, o) for o in top.outlets] if len(top.outlets) <= 2 else []

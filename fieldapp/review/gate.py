@@ -140,7 +140,11 @@ def _zs(rec: dict, diagnosis: dict, names: dict[str, str]) -> list[Problem]:
 def _verdict(diagnosis: dict, listed: list[Problem]) -> list[Problem]:
     verdict = diagnosis.get("verdict")
     if verdict == "satisfactory":
-        return []
+        # a fault the readings suggest but do not establish: signing off needs a reason (the
+        # check made) as any other problem does
+        return [Problem("finding", f"Not ruled out: {f.get('message') or ''}")
+                for f in diagnosis.get("findings") or []
+                if f.get("possible") and f.get("severity") == "warning"]
     if verdict == "incomplete" and any(p.kind == "steps_missing" for p in listed):
         return []  # the missing steps say it already
     word = VERDICT_WORDS.get(verdict or "", str(verdict))
