@@ -95,9 +95,10 @@ def joint(conductor: str, r_ohm: float, near: list[str], located: bool,
 def wrong_cross(step: str) -> tuple[str, str]:
     """Message and next check for a wrong cross-connection in step 2 or 3."""
     right, wrong = _STEP_JOINS[step]
-    msg = (f"The {_STEP_NAMES[step]} readings are low near the ends of the ring and highest "
-           f"in the middle: the pattern given when the ends are joined {wrong} instead of "
-           f"{right}.")
+    mid = "(r1 + rn)/4" if step == "ln" else "(r1 + r2)/4"
+    msg = (f"The {_STEP_NAMES[step]} readings fit the pattern given when the ends are joined "
+           f"{wrong} instead of {right}: low at outlets near either end of the ring, rising to "
+           f"{mid} only in the middle, where a sound ring reads about {mid} at every outlet.")
     nxt = f"Check the joins at the board: {right} (the ends crossed), then repeat the readings."
     return msg, nxt
 
