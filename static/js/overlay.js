@@ -226,6 +226,24 @@
     asOfLine(p, asOf, waitingHere);
   }
 
+  /* Readings of this user and circuit still waiting on the phone. */
+  function waitingReadings(items, p) {
+    var me = util.pageUser();
+    return items.filter(function (item) {
+      return me && item.userId === me.id && item.circuitId === p.circuitId &&
+        item.state === "waiting" && item.kind === "reading";
+    }).length;
+  }
+
+  // the outbox was redrawn (a reading kept offline, one sent): the "as of" line follows it,
+  // so it never says "nothing waiting" beside a reading that waits
+  document.addEventListener("ringtest:drawn", function (event) {
+    var p = page();
+    if (p && Array.isArray(event.detail)) {
+      asOfLine(p, Date.parse(p.asOf), waitingReadings(event.detail, p));
+    }
+  });
+
   function asOfLine(p, asOf, waiting) {
     var line = document.getElementById("as-of");
     var old = isFinite(asOf) && root.performance &&

@@ -129,6 +129,9 @@ def test_offline_reload_shows_what_the_phone_knows(apprentice, live_app, context
     try:
         enter(page, "r-ln-b", "0.27")
         expect(status(page)).to_contain_text("Saved on this phone, will send when back online")
+        # the "as of" line follows the outbox at once, not only after a reload
+        expect(page.locator("#as-of")).to_have_text(re.compile(
+            r"^As of \d\d:\d\d, 1 reading waiting\.$"))
         # no server to ask, but the card carries the band the server gave: (0.52+0.52)/4 =
         # 0.26 Ω, ±0.05 Ω (common practice)
         expect(card(page, "r-ln-b").locator(".offline-note")).to_contain_text(
