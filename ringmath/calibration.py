@@ -25,6 +25,9 @@ from ringmath.findings import BASES
 #: of 0.5 to 0.70 where such claims were right about 4 times in 10.
 PLATT = {"ring": (1.199, 0.401), "outlet": (0.882, 1.602), "setup": (1.179, 0.650)}
 _EDGE = 1e-9
+#: Highest confidence ever stated (the model is never the whole truth: readings carry meter
+#: noise, and the simulator the maps were fitted on is not the site).
+CAP = 0.97
 
 
 def calibrated(p: float, basis: str) -> float:

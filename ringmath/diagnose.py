@@ -33,7 +33,7 @@ POSITIONLESS = ("healthy", "wrong_cross_connection")
 #: Two combined explanations closer than this in score (nats) "fit about equally".
 LOOK_ALIKE_NATS = 2.0
 #: Highest confidence ever stated, and the highest with a whole step missing (see _cap).
-CONFIDENCE_CAP = 0.97
+CONFIDENCE_CAP = calibration.CAP
 MISSING_STEP_CAP = 0.85
 #: A best explanation needing this many independent faults is doubted as a whole.
 MANY_FAULTS = 3

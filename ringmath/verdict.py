@@ -20,7 +20,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from ringmath import messages
-from ringmath.calibration import calibrated
+from ringmath.calibration import CAP, calibrated
 from ringmath.findings import BASES, Finding
 from ringmath.record import RingTest
 
@@ -38,8 +38,10 @@ WIRING_CODES = frozenset({"interconnection", "open_conductor", "wrong_cross_conn
 #: on the quick typical-site run and called one more healthy ring of 40 "investigate" on the
 #: full one (bench/diagnosis.py --quick --healthy 40, typical 2.5 % -> 5.0 %).
 CREDIBLE_POSTERIOR = 0.9
-#: basis -> the stated figure of CREDIBLE_POSTERIOR on that basis' calibration map.
-CREDIBLE_P = {basis: calibrated(CREDIBLE_POSTERIOR, basis) for basis in BASES}
+#: basis -> the stated figure of CREDIBLE_POSTERIOR on that basis' calibration map, never above
+#: the highest figure ever stated (``calibration.CAP``: else a map that lifts 0.9 past it would
+#: leave no finding on that basis credible).
+CREDIBLE_P = {basis: min(calibrated(CREDIBLE_POSTERIOR, basis), CAP) for basis in BASES}
 
 
 def complete(test: RingTest) -> bool:

@@ -3,6 +3,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 
@@ -127,3 +129,14 @@ def test_a_clear_whole_ring_fault_stays_a_fault():
     result = diagnose(record)
     assert result["verdict"] == "investigate"
     assert result["findings"][0]["severity"] == "fault"
+
+
+@pytest.mark.parametrize("basis", ["ring", "outlet", "setup"])
+def test_a_finding_at_the_highest_stated_figure_is_credible_on_every_basis(basis):
+    # a map that lifts a posterior of 0.9 above the cap must not leave a basis with no
+    # credible finding at all: the highest figure ever stated is always credible
+    from ringmath.calibration import CAP
+    joint = replace(_joint(CAP), basis=basis)
+    said, _ = agree(_complete_test(), [joint])
+    assert said == "investigate"
+    assert CREDIBLE_P[basis] <= CAP
