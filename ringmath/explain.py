@@ -102,7 +102,11 @@ def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | 
         return None
     severity = "warning" if setup.p_beyond >= OFFSET_RETEST_P else "info"
     if setup.kind == "leads":
-        msg, nxt = setup_messages.lead_offset(d, ratios)
+        # on a step 2 reading: + d, less d/2 from (r1 + rn)/4, and the gain on what is left
+        # (setup_errors: reading = (1 + g) x true + d)
+        r1, rn, _ = prep.e2e_ohm
+        shift = d / 2 + setup.gain * float((r1 + rn - 2 * d) / 4)
+        msg, nxt = setup_messages.lead_offset(d, ratios, setup.gain, shift)
         return Finding("setup_lead_offset", severity, msg, nxt, confidence=confidence,
                        basis="setup")
     step = setup.kind.split("_")[1]

@@ -17,16 +17,22 @@ def _list(items) -> str:
     return ", ".join(items[:-1]) + " and " + items[-1]
 
 
-def lead_offset(offset_ohm: float, ratios: str) -> tuple[str, str]:
-    """All readings shifted by one offset: leads not nulled (positive) or over-nulled."""
+def lead_offset(offset_ohm: float, ratios: str, gain: float = 0.0,
+                shift_ohm: float | None = None) -> tuple[str, str]:
+    """All readings shifted by one offset: leads not nulled (positive) or over-nulled.
+    ``gain``: steps 2-3 also read this fraction more than step 1 implies (a warmer cable);
+    ``shift_ohm``: what both do to a step 2 reading against step 1 (default offset/2)."""
     if offset_ohm > 0:
         what = (f"every reading looks about {offset_ohm:.2f} Ω high, as when the test leads are "
                 "not nulled")
     else:
         what = (f"every reading looks about {-offset_ohm:.2f} Ω low, as when the leads were "
                 "nulled with a different lead set or a poor contact (over-nulled)")
-    msg = (f"The readings fit a sound ring, but {what}: each step 2 and step 3 reading sits "
-           f"about {abs(offset_ohm) / 2:.2f} Ω {'above' if offset_ohm > 0 else 'below'} what "
+    shift = offset_ohm / 2 if shift_ohm is None else shift_ohm
+    warm = (f", with steps 2 and 3 also reading about {100 * gain:.0f} % more than step 1 "
+            "implies (as with a warmer cable on the later day)") if abs(gain) >= 0.01 else ""
+    msg = (f"The readings fit a sound ring, but {what}{warm}: each step 2 and step 3 reading "
+           f"sits about {abs(shift):.2f} Ω {'above' if shift > 0 else 'below'} what "
            f"step 1 implies, the same at every outlet (inferred; {ratios}). No wiring fault "
            "shifts every reading alike.")
     nxt = ("Null the leads on the leads actually used, then re-take r1, rn and r2 and a few "

@@ -260,3 +260,18 @@ def test_a_set_up_kind_is_stated_with_its_own_share_not_any_set_up_error(add, ki
     assert 0.9 < setup.p_kind <= 1.0
     lead = diagnose(record)["findings"][0]
     assert lead["code"].startswith("setup_") and lead["confidence"] <= CONFIDENCE_CAP
+
+
+@pytest.mark.parametrize(("delta", "warm"), [(0.04, 1.0), (0.03, 1.04), (0.04, 1.04)])
+def test_the_stated_shift_of_a_lead_offset_is_what_the_readings_show(delta, warm):
+    # leads not nulled by delta: each step 2 reading sits delta/2 above (r1+rn)/4 (worked fact
+    # above), and a cable warmer for steps 2-3 adds its share; whatever split of offset and
+    # warmth the fit prefers, the words give the shift the readings show
+    import re
+    record = _record(ln_add=delta, le_add=delta, e2e_add=delta, scale=warm)
+    result = diagnose(record)
+    lead = next(f for f in result["findings"] if f["code"] == "setup_lead_offset")
+    said = float(re.search(r"sits about (\d\.\d\d) Ω above", lead["message"]).group(1))
+    ln = [o["ln"] for o in record["outlets"]]
+    shown = float(np.median(ln)) - 2 * (R1 + delta) / 4
+    assert said == pytest.approx(shown, abs=0.011)
