@@ -110,7 +110,8 @@ def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | 
         return Finding("setup_lead_offset", severity, msg, nxt, confidence=confidence,
                        basis="setup")
     step = setup.kind.split("_")[1]
-    msg, nxt = setup_messages.step_offset(step, d, ratios)
+    # against the other steps the offset alone (the gain is on steps 2 and 3 alike), said apart
+    msg, nxt = setup_messages.step_offset(step, d, ratios, setup.gain)
     return Finding("setup_lead_offset_step", severity, msg, nxt, step=None if step == "r" else step,
                    confidence=confidence, basis="setup")
 

@@ -42,13 +42,18 @@ def lead_offset(offset_ohm: float, ratios: str, gain: float = 0.0,
     return msg, nxt
 
 
-def step_offset(step: str, offset_ohm: float, ratios: str) -> tuple[str, str]:
-    """The readings of one step shifted alike."""
-    word = "high" if offset_ohm > 0 else "low"
-    msg = (f"The {_STEP[step]} readings all look about {abs(offset_ohm):.2f} Ω {word} against "
-           f"the other steps, by the same amount at every point (inferred; {ratios}). No wiring "
-           "fault does that to one step only: the leads were nulled differently for that step, "
-           "or a join at the board for it was poor.")
+def step_offset(step: str, offset_ohm: float, ratios: str,
+                gain: float = 0.0) -> tuple[str, str]:
+    """The readings of one step shifted alike. ``gain``: steps 2-3 also read this fraction
+    more than step 1 implies (said apart: it is on both steps alike)."""
+    shift = offset_ohm
+    word = "high" if shift > 0 else "low"
+    warm = (f", and steps 2 and 3 read about {100 * gain:.0f} % more than step 1 implies (as "
+            "with a warmer cable on the later day)") if abs(gain) >= 0.01 else ""
+    msg = (f"The {_STEP[step]} readings all look about {abs(shift):.2f} Ω {word} against "
+           f"the other steps, by the same amount at every point{warm} (inferred; {ratios}). No "
+           "wiring fault does that to one step only: the leads were nulled differently for that "
+           "step, or a join at the board for it was poor.")
     if step == "r":
         nxt = "Null the leads and re-take r1, rn and r2."
     else:
