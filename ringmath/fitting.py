@@ -127,7 +127,7 @@ def _scatter_cons(cons) -> np.ndarray:
 
 def _final(prep: Prepared, ln: np.ndarray, le: np.ndarray, cons) -> tuple[float, float]:
     """Marginal log-likelihood of one hypothesis' (G,) predictions and its scatter estimate."""
-    per_s = per_scatter_loglik(prep, ln[None], le[None], cons)[:, 0]
+    per_s = per_scatter_loglik(prep, ln[None], le[None], cons, step1=True)[:, 0]
     top = float(per_s.max())
     return top + float(np.log(np.sum(np.exp(per_s - top)))), scatter_estimate(per_s)
 

@@ -157,15 +157,75 @@ def log_mean_exp(a: np.ndarray, axis: int = -1) -> np.ndarray:
 
 
 def per_scatter_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
-                       cons: np.ndarray | float = 0.0) -> np.ndarray:
+                       cons: np.ndarray | float = 0.0, step1: bool = False) -> np.ndarray:
     """(S, T): for each contact sd of the grid, the sum over ring outlets of the
     position-averaged log-likelihood, plus ``cons`` (step 1's term, (S,) or (S, T)) and the
-    log prior of that sd."""
-    per_s = log_mean_exp(outlet_loglik(prep, pred_ln, pred_le, None), axis=-1).sum(axis=-1)
+    log prior of that sd; with ``step1`` also ``step1_shift_loglik`` (from the same arrays)."""
+    ll = outlet_loglik(prep, pred_ln, pred_le, None)
+    per_s = log_mean_exp(ll, axis=-1).sum(axis=-1)
+    if step1:
+        per_s = per_s + step1_shift_loglik(prep, pred_ln, pred_le, ll)
     cons = np.asarray(cons, dtype=float)
     if cons.ndim == 1:
         cons = cons[:, None]
     return per_s + cons + LOG_CONTACT_PRIOR[:, None]
+
+
+def _shift_terms(x: np.ndarray, mu: np.ndarray, sd: np.ndarray, w: np.ndarray):
+    """Per contact sd and hypothesis, the first and second derivative of the outlets' summed
+    log-likelihood with respect to one shift c of every prediction of a step (mu + c), at
+    c = 0: sums over outlets of sum_t w (x - mu) r / var and sum_t w r / var, r the inlier
+    responsibility, w the position posterior (the variance of the residual over t left out,
+    which can only make the curvature smaller: the correction is on the modest side)."""
+    x_fin, mu_fin = np.isfinite(x), np.isfinite(mu)
+    xs = (x if x_fin.all() else np.where(x_fin, x, 0.0))[None, None, :, None]
+    ms = (np.maximum(mu, 0.0) if mu_fin.all() else np.where(mu_fin, np.maximum(mu, 0.0), 0.0))
+    inv = 1.0 / (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * ms[:, None, :]) ** 2
+                 + sd**2)  # (S, T, 1, G)
+    res = xs - ms[:, None, :]  # (1, T, n, G)
+    above = (_LOG_INLIER - LOG_OUTLIER) - 0.5 * (res * res * inv - np.log(inv))
+    wr = w * inv / (1.0 + np.exp(-np.clip(above, -50.0, 50.0)))  # w x responsibility / var
+    if not (x_fin.all() and mu_fin.all()):
+        wr = wr * (x_fin[None, None, :, None] & mu_fin[:, None, :])
+    return np.sum(wr * res, axis=(-1, -2)), np.sum(wr, axis=(-1, -2))
+
+
+def step1_shift_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
+                       ll: np.ndarray | None = None) -> np.ndarray:
+    """(S, T): what step 1's own scatter adds to each hypothesis' log-likelihood.
+
+    Every step 2 and 3 prediction is made from the recorded r1, rn and r2, whose own errors
+    (meter and contact scatter, sd sigma_e each) move all of a step's predictions alike: by
+    c_ln = (e1 + en)/4 and c_le = (e1 + e2)/4 near the middle of the ring, prior covariance
+    sigma_e²/16 x [[2, 1], [1, 2]] (series-parallel reduction of the cross-connected ring,
+    common practice). The readings' log-likelihood is integrated over (c_ln, c_le) in the
+    Laplace approximation about c = 0 (Gaussian integral of a quadratic: 1/2 g'(H + V^-1)^-1 g
+    - 1/2 log det(I + V H)), so a shared shift of all outlets' readings that step 1's scatter
+    explains is not taken for structure. Ring outlets only (the spurs ride on them). ``ll``:
+    ``outlet_loglik(..., None)`` of the same predictions when already computed."""
+    sd = CONTACT_SD_OHM[:, None, None, None]
+    if ll is None:
+        ll = outlet_loglik(prep, pred_ln, pred_le, None)  # (S, T, n, G)
+    top = np.max(ll, axis=-1, keepdims=True)
+    w = np.exp(ll - top)
+    w = w / np.sum(w, axis=-1, keepdims=True)
+    g_ln, h_ln = _shift_terms(prep.ln_ohm, pred_ln, sd, w)
+    g_le, h_le = _shift_terms(prep.le_ohm, pred_le, sd, w)
+    r1 = float(prep.e2e_ohm[0]) if np.isfinite(prep.e2e_ohm[0]) else 0.0
+    var_e = (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * r1) ** 2
+             + CONTACT_SD_OHM**2)[:, None] / 16.0
+    v11, v12 = 2.0 * var_e, var_e
+    # M = I + V H with H = diag(h_ln, h_le); gain = 1/2 g' (H + V^-1)^-1 g - 1/2 log det M,
+    # and (H + V^-1)^-1 = M^-1 V
+    m11, m12 = 1.0 + v11 * h_ln, v12 * h_le
+    m21, m22 = v12 * h_ln, 1.0 + v11 * h_le
+    det = m11 * m22 - m12 * m21
+    # A = M^-1 V (symmetric), from the 2x2 inverse
+    a11 = (m22 * v11 - m12 * v12) / det
+    a12 = (m22 * v12 - m12 * v11) / det
+    a22 = (-m21 * v12 + m11 * v11) / det
+    quad = a11 * g_ln**2 + 2 * a12 * g_ln * g_le + a22 * g_le**2
+    return 0.5 * quad - 0.5 * np.log(det)
 
 
 def marginal_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,

@@ -34,6 +34,7 @@ from ringmath.likelihood import (
     e2e_consistency,
     log_mean_exp,
     marginal_loglik,
+    per_scatter_loglik,
     t_grid,
 )
 from ringmath.star import PLAIN, step_readings
@@ -65,11 +66,11 @@ class Setup:
     """One set-up error: kind (see module doc), offset_ohm d, gain g (steps 2-3 read
     (1 + g) x what step 1 implies). log_cost: log prior of the kind + the Occam factor of its
     parameter (<= 0). vs_none: its evidence under a sound ring minus "as read" (nats).
-    p_beyond: posterior probability (over the kind's grid, allowing for step 1's own scatter:
-    ``_step1_share``) that the offset is beyond OFFSET_TOLERATED_OHM either way: the readings
-    then have to be re-taken. p_kind: this kind's
-    share of the posterior of all set-up kinds (under a sound ring): what a finding naming the
-    kind multiplies the probability of "some set-up error" by."""
+    p_beyond: posterior probability (over the kind's grid, with the scatter integrated and
+    step 1's own scatter allowed for: ``likelihood.step1_shift_loglik``) that the offset is
+    beyond OFFSET_TOLERATED_OHM either way: the readings then have to be re-taken. p_kind:
+    this kind's share of the posterior of all set-up kinds (under a sound ring): what a finding
+    naming the kind multiplies the probability of "some set-up error" by."""
 
     kind: str
     offset_ohm: float = 0.0
@@ -108,22 +109,6 @@ def _variants(e2e: np.ndarray) -> list[tuple[str, float, float, float, float, fl
     rows += [("gain", g, 0.0, 0.0, 0.0, g) for g in GAIN_GRID]
     rows += [("scale", f, 0.0, 0.0, 0.0, f - 1.0) for f in SCALE_GRID]
     return rows
-
-
-def _step1_share(prep: Prepared, kind: str) -> float:
-    """How much of the readings' evidence on an offset survives step 1's own scatter.
-
-    The sound ring's step 2 and 3 readings are predicted from the recorded r1, rn and r2, so
-    the scatter of those three readings shifts every prediction alike: (r1 + rn)/4 carries
-    an error of sd sigma·sqrt(2)/4 (sigma: one reading's scatter, the same for step 1 as for
-    the outlets' readings) that no number of outlet readings averages away. An offset seen in
-    the mean of N outlet readings (a shift of d/2 for leads not nulled or an offset on step 1,
-    d for one of steps 2-3) then has variance 4·sigma²/N + sigma²/2 (d/2 kinds) or
-    sigma²/N + sigma²/8 (one step) instead of the first term alone: the log-likelihood over
-    d is flattened by the ratio, 8 / (8 + N) in both cases (Gaussian approximation)."""
-    n_ln, n_le = int(np.isfinite(prep.ln_ohm).sum()), int(np.isfinite(prep.le_ohm).sum())
-    n = {"offset_ln": n_ln, "offset_le": n_le}.get(kind, n_ln + n_le)
-    return 8.0 / (8.0 + max(n, 1))
 
 
 def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
@@ -173,11 +158,15 @@ def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
     if best.kind not in ("gain", "scale"):
         # how far the offset is: its rows again with the scatter integrated (the search's sd
         # is the sound ring's as read, which an offset left in the readings inflates) and
-        # step 1's own scatter allowed for
-        ll_k = marginal_loglik(prep, pred_ln[best_rows], pred_le[best_rows],
-                               cons_d[:, which[best_rows]])
+        # step 1's own scatter allowed for (likelihood.step1_shift_loglik)
+        # at the kind's best gain (the warmth is not what is asked here; a third of the work)
+        best_rows = np.array([i for i in best_rows if rows[i][5] == best.gain])
+        pl, pe = pred_ln[best_rows], pred_le[best_rows]
+        per_s = per_scatter_loglik(prep, pl, pe, cons_d[:, which[best_rows]], step1=True)
+        top = per_s.max(axis=0)
+        ll_k = top + np.log(np.exp(per_s - top).sum(axis=0))
         params = np.array([rows[i][1] for i in best_rows])
-        w = np.exp(_step1_share(prep, best.kind) * (ll_k - ll_k.max()))
+        w = np.exp(ll_k - ll_k.max())
         beyond = float(w[np.abs(params) > OFFSET_TOLERATED_OHM + 1e-9].sum() / w.sum())
     return replace(best, p_kind=float(min(share, 1.0)), p_beyond=beyond)
 

@@ -209,17 +209,34 @@ def test_noisier_readings_state_larger_limits(seed):
     assert b["joint_ohm"] >= a["joint_ohm"]
 
 
-def test_the_offset_allows_for_step_one_scatter():
-    # (r1+rn)/4 carries step 1's own scatter into every prediction: the evidence on an offset
-    # from N outlet readings is flattened by 8/(8+N) (Gaussian approximation), so more outlets
-    # sharpen it less than 1/N would say
-    from ringmath.likelihood import prepare
+@pytest.mark.parametrize("delta", [-0.02, 0.0, 0.015, 0.03])
+def test_step_one_scatter_term_is_the_gaussian_integral_over_a_shared_shift(delta):
+    # With step 2 alone, every outlet reading x_i = mu + delta and the predictions shifted by a
+    # common c ~ N(0, v): the integral of exp(g c - h c²/2) N(c; 0, v) over c is exactly
+    # exp(v g² / (2 (1 + v h))) / sqrt(1 + v h), g = sum (x - mu)/var, h = n/var (Gaussian
+    # integral, any probability text); v = 2 sigma_e²/16 for (e1 + en)/4.
+    from ringmath import meter
+    from ringmath.likelihood import CONTACT_SD_OHM, prepare, step1_shift_loglik
     from ringmath.record import parse_record
-    from ringmath.setup_errors import _step1_share
-    few, many = (prepare(parse_record(_record(n))) for n in (4, 16))
-    assert _step1_share(few, "leads") == pytest.approx(8 / 16)
-    assert _step1_share(many, "leads") == pytest.approx(8 / 40)
-    assert _step1_share(many, "offset_ln") == pytest.approx(8 / 24)
+    record = _record(6)
+    mu = R1 / 2  # (r1 + rn)/4 for r1 = rn, the same at every place (sound ring)
+    for o in record["outlets"]:
+        o["ln"], o["le"] = round(mu + delta, 3), None
+    prep = prepare(parse_record(record))
+    pred = np.full((1, 16), mu)
+    got = step1_shift_loglik(prep, pred, np.full((1, 16), R2 / 2))[:, 0]
+    var = meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * mu) ** 2 + CONTACT_SD_OHM**2
+    v = 2 * (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * R1) ** 2
+             + CONTACT_SD_OHM**2) / 16
+    x = np.array([o["ln"] for o in record["outlets"]])
+    g, h = np.sum(x - mu) / var, len(x) / var
+    want = v * g**2 / (2 * (1 + v * h)) - 0.5 * np.log1p(v * h)
+    # within 0.5 %: the reading model's outlier part takes a sliver of each reading's weight
+    assert np.allclose(got, want, rtol=5e-3, atol=1e-6)
+    # physical sense beside it: a shift either way counts alike, and no shift costs only the
+    # Occam factor of the shift's prior
+    if delta == 0.0:
+        assert np.all(got < 0)
 
 
 @pytest.mark.parametrize("circuit", [{"cpc_kind": "conduit"}, {"parallel_paths": True}])
