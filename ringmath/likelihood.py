@@ -59,6 +59,19 @@ def t_grid(n: int) -> np.ndarray:
 
 
 
+def _reading_var(mu_ohm: np.ndarray, extra_sd) -> np.ndarray:
+    """sigma² of a reading: meter.sigma_ohm(mu)² + extra² (the meter formula written out for
+    arrays of model values ``mu_ohm`` >= 0)."""
+    return (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * mu_ohm) ** 2
+            + np.asarray(extra_sd, dtype=float) ** 2)
+
+
+def _inlier_margin(res: np.ndarray, var: np.ndarray) -> np.ndarray:
+    """log(inlier density) - log(outlier density) of a residual ``res`` with variance
+    ``var``: > 0 where the reading model takes the reading as an ordinary one."""
+    return (_LOG_INLIER - LOG_OUTLIER) - 0.5 * (res * res / var + np.log(var))
+
+
 def reading_loglik(x: np.ndarray, mu: np.ndarray, extra_sd=0.0) -> np.ndarray:
     """Log-likelihood of displayed readings ``x`` (ohms; nan = not taken -> 0; inf = OL)
     given model values ``mu`` (ohms; inf = open) and the ring's extra scatter ``extra_sd``
@@ -75,10 +88,7 @@ def reading_loglik(x: np.ndarray, mu: np.ndarray, extra_sd=0.0) -> np.ndarray:
     all_fin = bool(x_fin.all()) and bool(mu_fin.all())
     xs = x if all_fin else np.where(x_fin, x, 0.0)
     ms = np.maximum(mu, 0.0) if all_fin else np.where(mu_fin, np.maximum(mu, 0.0), 0.0)
-    # sigma² = meter.sigma_ohm(mu)² + extra² (the meter formula written out for arrays)
-    var = (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * ms) ** 2
-           + np.asarray(extra_sd, dtype=float) ** 2)
-    above = (_LOG_INLIER - LOG_OUTLIER) - 0.5 * ((xs - ms) ** 2 / var + np.log(var))
+    above = _inlier_margin(xs - ms, _reading_var(ms, extra_sd))
     mixed = LOG_OUTLIER + np.maximum(above, 0.0) + np.log1p(np.exp(-np.abs(above)))
     if all_fin:
         return mixed
@@ -180,11 +190,10 @@ def _shift_terms(x: np.ndarray, mu: np.ndarray, sd: np.ndarray, w: np.ndarray):
     x_fin, mu_fin = np.isfinite(x), np.isfinite(mu)
     xs = (x if x_fin.all() else np.where(x_fin, x, 0.0))[None, None, :, None]
     ms = (np.maximum(mu, 0.0) if mu_fin.all() else np.where(mu_fin, np.maximum(mu, 0.0), 0.0))
-    inv = 1.0 / (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * ms[:, None, :]) ** 2
-                 + sd**2)  # (S, T, 1, G)
+    var = _reading_var(ms[:, None, :], sd)  # (S, T, 1, G)
     res = xs - ms[:, None, :]  # (1, T, n, G)
-    above = (_LOG_INLIER - LOG_OUTLIER) - 0.5 * (res * res * inv - np.log(inv))
-    wr = w * inv / (1.0 + np.exp(-np.clip(above, -50.0, 50.0)))  # w x responsibility / var
+    above = _inlier_margin(res, var)
+    wr = w / (var * (1.0 + np.exp(-np.clip(above, -50.0, 50.0))))  # w x responsibility / var
     if not (x_fin.all() and mu_fin.all()):
         wr = wr * (x_fin[None, None, :, None] & mu_fin[:, None, :])
     return np.sum(wr * res, axis=(-1, -2)), np.sum(wr, axis=(-1, -2))
@@ -212,8 +221,7 @@ def step1_shift_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
     g_ln, h_ln = _shift_terms(prep.ln_ohm, pred_ln, sd, w)
     g_le, h_le = _shift_terms(prep.le_ohm, pred_le, sd, w)
     r1 = float(prep.e2e_ohm[0]) if np.isfinite(prep.e2e_ohm[0]) else 0.0
-    var_e = (meter.SIGMA_FLOOR_OHM**2 + (meter.SIGMA_RELATIVE * r1) ** 2
-             + CONTACT_SD_OHM**2)[:, None] / 16.0
+    var_e = _reading_var(np.asarray(max(r1, 0.0)), CONTACT_SD_OHM)[:, None] / 16.0
     v11, v12 = 2.0 * var_e, var_e
     # M = I + V H with H = diag(h_ln, h_le); gain = 1/2 g' (H + V^-1)^-1 g - 1/2 log det M,
     # and (H + V^-1)^-1 = M^-1 V
@@ -229,14 +237,18 @@ def step1_shift_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
 
 
 def marginal_loglik(prep: Prepared, pred_ln: np.ndarray, pred_le: np.ndarray,
-                    cons: np.ndarray | float = 0.0, s_index: int | None = None) -> np.ndarray:
+                    cons: np.ndarray | float = 0.0, s_index: int | None = None,
+                    step1: bool = False) -> np.ndarray:
     """(T,): the readings' log-likelihood with positions averaged and the ring's scatter
-    integrated over its grid (``per_scatter_loglik``, log-sum-exp over the sd axis).
+    integrated over its grid (``per_scatter_loglik``, log-sum-exp over the sd axis); with
+    ``step1`` also step 1's own scatter (``step1_shift_loglik``).
 
     s_index: use only that contact sd of the grid (a parameter search, where only the ranking
-    of the candidates matters; five times less work)."""
+    of the candidates matters; five times less work; not with ``step1``)."""
     if s_index is None:
-        return _logsumexp0(per_scatter_loglik(prep, pred_ln, pred_le, cons))
+        return _logsumexp0(per_scatter_loglik(prep, pred_ln, pred_le, cons, step1))
+    if step1:
+        raise ValueError("step1: only with the scatter integrated (s_index None)")
     sd = float(CONTACT_SD_OHM[s_index])
     per = log_mean_exp(outlet_loglik(prep, pred_ln, pred_le, sd), axis=-1).sum(axis=-1)
     c = np.asarray(cons, dtype=float)

@@ -34,7 +34,6 @@ from ringmath.likelihood import (
     e2e_consistency,
     log_mean_exp,
     marginal_loglik,
-    per_scatter_loglik,
     t_grid,
 )
 from ringmath.star import PLAIN, step_readings
@@ -158,13 +157,11 @@ def fit_setup(prep: Prepared, s_index: int = 1) -> Setup | None:
     if best.kind not in ("gain", "scale"):
         # how far the offset is: its rows again with the scatter integrated (the search's sd
         # is the sound ring's as read, which an offset left in the readings inflates) and
-        # step 1's own scatter allowed for (likelihood.step1_shift_loglik)
-        # at the kind's best gain (the warmth is not what is asked here; a third of the work)
+        # step 1's own scatter allowed for, at the kind's best gain (the warmth is not what is
+        # asked here; a third of the work)
         best_rows = np.array([i for i in best_rows if rows[i][5] == best.gain])
-        pl, pe = pred_ln[best_rows], pred_le[best_rows]
-        per_s = per_scatter_loglik(prep, pl, pe, cons_d[:, which[best_rows]], step1=True)
-        top = per_s.max(axis=0)
-        ll_k = top + np.log(np.exp(per_s - top).sum(axis=0))
+        ll_k = marginal_loglik(prep, pred_ln[best_rows], pred_le[best_rows],
+                               cons_d[:, which[best_rows]], step1=True)
         params = np.array([rows[i][1] for i in best_rows])
         w = np.exp(ll_k - ll_k.max())
         beyond = float(w[np.abs(params) > OFFSET_TOLERATED_OHM + 1e-9].sum() / w.sum())

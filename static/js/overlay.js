@@ -198,13 +198,11 @@
     var me = util.pageUser();
     var asOf = Date.parse(p.asOf);
     var fields = STEP_FIELDS[p.step] || [];
-    var waitingHere = 0;
     items.forEach(function (item) {
       if (!me || item.userId !== me.id || item.circuitId !== p.circuitId) return;
       var waiting = item.state === "waiting";
       var sentSince = item.state === "sent" && Date.parse(item.serverAt) >= asOf;
       if (!waiting && !sentSince) return;
-      if (waiting && item.kind === "reading") waitingHere += 1;
       if (item.kind === "outlet") {
         var o = outletOf(item);
         addSource(o);
@@ -223,7 +221,7 @@
         if (rc) setValue(rc, item.body.value, waiting);
       }
     });
-    asOfLine(p, asOf, waitingHere);
+    asOfLine(p, asOf, waitingReadings(items, p));
   }
 
   /* Readings of this user and circuit still waiting on the phone. */

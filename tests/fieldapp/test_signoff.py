@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import pytest
 import sqlalchemy as sa
+from site_records import ring_with_step_1_read_low
 
 HEALTHY_E2E = {"r1": 0.52, "rn": 0.52, "r2": 0.85}
 HEALTHY_OUTLETS = [{"label": "Kitchen", "ln": 0.26, "le": 0.34},
@@ -220,26 +221,11 @@ def test_the_list_flags_jobs_signed_off_despite_problems(app, make_circuit, test
     assert "submitted with problems, reason given" in row and "no problems" not in row
 
 
-def _ring_with_step_1_read_low():
-    """Invented readings (a seeded simulation of a sound ring, step 1 read with the leads
-    over-nulled by about 0.05 Ω): a bridge and a sound ring with a step 1 offset fit about
-    alike, so the diagnosis says a bridge is possible, not established."""
-    rows = [("h", 0.20, 0.26), ("f", 0.15, 0.21), ("b", 0.17, 0.23), ("e", 0.15, 0.26),
-            ("g", 0.15, 0.21), ("a", 0.21, 0.27)]
-    return {"circuit": {"ocpd": {"standard": "BS EN 60898", "curve": "B", "rating_a": 32},
-                        "live_csa_mm2": 2.5, "cpc_csa_mm2": 1.5, "ze_ohm": 0.21,
-                        "ze_source": "measured", "earthing": "TN-C-S",
-                        "safety": {"isolated": True, "locked_off": True, "proved_dead": True}},
-            "end_to_end": {"r1": 0.30, "rn": 0.31, "r2": 0.50},
-            "outlets": [{"id": i, "label": f"Point {i}", "spur_from": None, "kind": "twin_socket",
-                         "ln": ln, "le": le} for i, ln, le in rows]}
-
-
 def test_a_fault_suggested_but_not_established_needs_a_reason_to_sign_off():
     from fieldapp.review.gate import circuit_problems
     from ringmath.diagnose import diagnose
 
-    record = _ring_with_step_1_read_low()
+    record = ring_with_step_1_read_low()
     result = diagnose(record)
     assert result["verdict"] == "satisfactory"
     possible = [f for f in result["findings"] if f["possible"]]

@@ -7,6 +7,7 @@ from dataclasses import replace
 
 import numpy as np
 import pytest
+from site_records import ring_with_step_1_read_low
 
 from ringmath.diagnose import diagnose
 from ringmath.findings import Finding
@@ -88,29 +89,14 @@ def test_diagnose_verdict_agrees_with_every_finding(seed, fault):
                    for f in wiring)
 
 
-def _ring_with_step_1_read_low():
-    """A six-socket ring whose step 1 was read with the leads over-nulled by about 0.05 Ω, so
-    the step 2 and 3 readings sit unevenly above what r1, rn and r2 imply ((r1+rn)/4 = 0.15 Ω;
-    common practice): a bridge and a sound ring with a step 1 offset fit about alike. Invented
-    readings (a seeded simulation of a sound ring, leads -0.047 Ω on step 1, probe scatter
-    0.02 Ω, 2 % warmer)."""
-    rows = [("h", 0.20, 0.26), ("f", 0.15, 0.21), ("b", 0.17, 0.23), ("e", 0.15, 0.26),
-            ("g", 0.15, 0.21), ("a", 0.21, 0.27)]
-    outlets = [{"id": i, "label": f"Point {i}", "spur_from": None, "kind": "twin_socket",
-                "ln": ln, "le": le} for i, ln, le in rows]
-    return {"circuit": {"ocpd": dict(B32), "live_csa_mm2": 2.5, "cpc_csa_mm2": 1.5,
-                        "ze_ohm": 0.21, "ze_source": "measured", "earthing": "TN-C-S"},
-            "end_to_end": {"r1": 0.30, "rn": 0.31, "r2": 0.50}, "outlets": outlets}
-
-
 def test_a_whole_ring_fault_a_sound_ring_fits_nearly_as_well_is_a_check_not_a_fault():
     from ringmath.explain import RING_FAULT_P
     from ringmath.messages import POSSIBLE
-    raw = diagnose(_ring_with_step_1_read_low(), calibrate=False)
+    raw = diagnose(ring_with_step_1_read_low(), calibrate=False)
     top = raw["findings"][0]
     assert top["code"] == "interconnection" and top["basis"] == "ring"
     assert top["confidence"] < RING_FAULT_P  # the posterior: about even with a sound ring
-    result = diagnose(_ring_with_step_1_read_low())
+    result = diagnose(ring_with_step_1_read_low())
     lead = result["findings"][0]
     assert lead["severity"] == "warning" and lead["message"].endswith(POSSIBLE)
     assert result["verdict"] == "satisfactory"  # no fault is established ...

@@ -1,0 +1,20 @@
+"""Invented records shared by the ringmath and fieldapp tests (not collected as tests)."""
+
+from __future__ import annotations
+
+
+def ring_with_step_1_read_low() -> dict:
+    """A six-socket ring whose step 1 was read with the leads over-nulled by about 0.05 Ω, so
+    the step 2 and 3 readings sit unevenly above what r1, rn and r2 imply ((r1+rn)/4 = 0.15 Ω;
+    common practice): a bridge and a sound ring with a step 1 offset fit about alike, and the
+    diagnosis says a bridge is possible, not established. Invented readings (a seeded
+    simulation of a sound ring, leads -0.047 Ω on step 1, probe scatter 0.02 Ω, 2 % warmer)."""
+    rows = [("h", 0.20, 0.26), ("f", 0.15, 0.21), ("b", 0.17, 0.23), ("e", 0.15, 0.26),
+            ("g", 0.15, 0.21), ("a", 0.21, 0.27)]
+    return {"circuit": {"ocpd": {"standard": "BS EN 60898", "curve": "B", "rating_a": 32},
+                        "live_csa_mm2": 2.5, "cpc_csa_mm2": 1.5, "ze_ohm": 0.21,
+                        "ze_source": "measured", "earthing": "TN-C-S",
+                        "safety": {"isolated": True, "locked_off": True, "proved_dead": True}},
+            "end_to_end": {"r1": 0.30, "rn": 0.31, "r2": 0.50},
+            "outlets": [{"id": i, "label": f"Point {i}", "spur_from": None,
+                         "kind": "twin_socket", "ln": ln, "le": le} for i, ln, le in rows]}
