@@ -85,11 +85,12 @@ def _named(ids, names: dict) -> list[str]:
 
 
 def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
-                 place: np.ndarray, names: dict) -> Finding:
+                 place: np.ndarray, names: dict, some_fault: bool) -> Finding:
     """The whole-ring fault of ``fit`` as a Finding, located where the readings allow; below
-    ``explain.RING_FAULT_P`` a warning that says a sound ring fits nearly as well."""
+    ``explain.RING_FAULT_P`` a warning that says a sound ring fits nearly as well, unless
+    ``some_fault`` (``explain.doubted``)."""
     return explain.doubted(_fit_words(prep, fit, confidence, post, place, names), confidence,
-                           explain.RING_FAULT_P)
+                           explain.RING_FAULT_P, some_fault)
 
 
 def _fit_words(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
@@ -178,16 +179,19 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
     best_fit, used = best.fit, best.prep
     post, place, sd = _posterior(used, best_fit)
     findings: list[Finding] = []
+    # every fitted finding below is part of the best combination: where the readings put some
+    # wiring fault beyond RING_FAULT_P, they stay faults even when each alone is doubtful
+    some_fault = ranking.sound_weight(combos, weights) <= 1.0 - explain.RING_FAULT_P
     if best_fit.code != "healthy":
         conf = cap(ranking.fit_weight(combos, weights, best_fit))
-        findings.append(_fit_finding(used, best_fit, conf, post, place, names))
+        findings.append(_fit_finding(used, best_fit, conf, post, place, names, some_fault))
     front = {o.id for o in test.outlets if getattr(o, "taken_at", None) == "front"}
     local = []
     for lf in best.local:
         p = ranking.local_weight(combos, weights, lf)
         # tied explanations share one probability: the pair is capped, each keeps its part
         local.append((lf, min(cap(p), cap(1.0) * lf.tie_share) if lf.tie else cap(p)))
-    findings.extend(explain.local_findings(used, local, names, front))
+    findings.extend(explain.local_findings(used, local, names, front, some_fault))
     p_setup = ranking.setup_weight(combos, weights)
     if best.setup is not None:
         # "some set-up error" times this kind's share among the kinds: a finding names one kind

@@ -60,10 +60,13 @@ def joint_severity(r_ohm: float) -> str:
     return "fault" if r_ohm >= JOINT_FAULT_OHM else "warning"
 
 
-def doubted(f: Finding, posterior: float, threshold: float) -> Finding:
-    """A fitted fault ``f`` as a warning that says other explanations fit nearly as well, when
-    its posterior is under ``threshold`` (RING_FAULT_P, OUTLET_FAULT_P); else ``f``."""
-    if f.severity != "fault" or posterior >= threshold:
+def doubted(f: Finding, posterior: float, threshold: float, some_fault: bool = False) -> Finding:
+    """A fitted fault ``f`` as a warning that says other explanations, a sound ring among them,
+    fit nearly as well, when its posterior is under ``threshold`` (RING_FAULT_P,
+    OUTLET_FAULT_P); else ``f``. ``some_fault``: the readings put some wiring fault beyond
+    RING_FAULT_P (``ranking.sound_weight``) and ``f`` is part of their best explanation, so it
+    stays a fault: the alternatives are other faults (a look-alike), not a sound ring."""
+    if f.severity != "fault" or posterior >= threshold or some_fault:
         return f
     return replace(f, severity="warning", message=f.message + messages.POSSIBLE, possible=True)
 
@@ -117,8 +120,9 @@ def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | 
 
 
 def local_findings(prep: Prepared, faults: list[tuple[LocalFault, float]], names: dict,
-                   front: set[str]) -> list[Finding]:
-    """Findings for outlet faults with their confidences; socket contacts grouped in one."""
+                   front: set[str], some_fault: bool = False) -> list[Finding]:
+    """Findings for outlet faults with their confidences; socket contacts grouped in one.
+    ``some_fault``: as in ``doubted``."""
     out: list[Finding] = []
     contacts = [(lf, c) for lf, c in faults if lf.code == "setup_socket_contacts"]
     if contacts:
@@ -141,13 +145,15 @@ def local_findings(prep: Prepared, faults: list[tuple[LocalFault, float]], names
                                                 bool(np.isfinite(prep.ln_ohm[i])),
                                                 bool(np.isfinite(prep.le_ohm[i])))
             out.append(doubted(Finding("unrecorded_spur", "fault", msg, nxt, (lf.outlet,),
-                                       confidence=conf, basis="outlet"), conf, OUTLET_FAULT_P))
+                                       confidence=conf, basis="outlet"), conf, OUTLET_FAULT_P,
+                               some_fault))
         elif lf.code == "high_resistance_joint" and lf.swap is None and lf.tie is None:
             msg, nxt = messages.joint(lf.conductor, lf.r_ohm or 0.0, [name], True,
                                       at_outlet=True)
             out.append(doubted(Finding("high_resistance_joint", joint_severity(lf.r_ohm or 0.0),
                                        msg, nxt, (lf.outlet,), conductor=lf.conductor,
-                                       confidence=conf, basis="outlet"), conf, OUTLET_FAULT_P))
+                                       confidence=conf, basis="outlet"), conf, OUTLET_FAULT_P,
+                               some_fault))
         else:
             tie_conf = conf * (1.0 - lf.tie_share) / lf.tie_share if lf.tie else conf
             for (code, conductor, swap), c in (((lf.code, lf.conductor, lf.swap), conf),

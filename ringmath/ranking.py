@@ -93,6 +93,22 @@ def local_weight(combos: list[Combo], weights: np.ndarray, lf: LocalFault) -> fl
     return total
 
 
+def sound_weight(combos: list[Combo], weights: np.ndarray) -> float:
+    """Posterior probability that the wiring is sound: over the combinations whose whole-ring
+    fit is a sound ring, the weight of each times the probability that none of its outlet
+    faults is there (worn socket contacts and set-up errors are not wiring faults)."""
+    total = 0.0
+    for c, w in zip(combos, weights, strict=True):
+        if c.fit.code != "healthy":
+            continue
+        p = float(w)
+        for lf in c.local:
+            if lf.code != "setup_socket_contacts":
+                p *= 1.0 - lf.confidence() - (lf.confidence(of_tie=True) if lf.tie else 0.0)
+        total += p
+    return total
+
+
 def setup_weight(combos: list[Combo], weights: np.ndarray) -> float:
     """Posterior probability that the readings carry a set-up error."""
     return float(sum(w for c, w in zip(combos, weights, strict=True) if c.setup is not None))

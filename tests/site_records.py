@@ -18,3 +18,24 @@ def ring_with_step_1_read_low() -> dict:
             "end_to_end": {"r1": 0.30, "rn": 0.31, "r2": 0.50},
             "outlets": [{"id": i, "label": f"Point {i}", "spur_from": None,
                          "kind": "twin_socket", "ln": ln, "le": le} for i, ln, le in rows]}
+
+
+def ring_bridged_or_spurred_at_c() -> dict:
+    """A five-socket ring (two spurs, one beyond an FCU) where outlet c reads about 0.03 Ω high
+    in step 2 and 0.05 Ω high in step 3 ((r1+rn)/4 = 0.09 Ω, (r1+r2)/4 = 0.12 Ω; common
+    practice): a short bridge from c and an unrecorded spur at c fit about alike, a sound ring
+    far worse. Invented readings (a seeded simulation: a bridge between c and g, clean meter)."""
+    rows = [("e", "fcu", None, 3.0, 0.09, 0.12), ("c", "twin_socket", None, None, 0.12, 0.17),
+            ("h", "single_socket", "i", None, 0.19, 0.26),
+            ("a", "twin_socket", None, None, 0.08, 0.12),
+            ("g", "twin_socket", None, None, 0.12, 0.15),
+            ("d", "fixed_equipment", "e", None, 0.27, 0.32),
+            ("i", "twin_socket", None, None, 0.10, 0.12)]
+    return {"circuit": {"ocpd": {"standard": "BS EN 60898", "curve": "B", "rating_a": 32},
+                        "live_csa_mm2": 2.5, "cpc_csa_mm2": 1.5, "ze_ohm": 0.25,
+                        "ze_source": "measured", "earthing": "TN-C-S",
+                        "safety": {"isolated": True, "locked_off": True, "proved_dead": True}},
+            "end_to_end": {"r1": 0.18, "rn": 0.19, "r2": 0.31},
+            "outlets": [{"id": i, "label": f"Point {i}", "kind": kind, "spur_from": parent,
+                         "fuse_a": fuse, "ln": ln, "le": le}
+                        for i, kind, parent, fuse, ln, le in rows]}

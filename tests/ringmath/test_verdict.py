@@ -7,7 +7,7 @@ from dataclasses import replace
 
 import numpy as np
 import pytest
-from site_records import ring_with_step_1_read_low
+from site_records import ring_bridged_or_spurred_at_c, ring_with_step_1_read_low
 
 from ringmath.diagnose import diagnose
 from ringmath.findings import Finding
@@ -114,6 +114,36 @@ def test_a_clear_whole_ring_fault_stays_a_fault():
     result = diagnose(record)
     assert result["verdict"] == "investigate"
     assert result["findings"][0]["severity"] == "fault"
+
+
+def test_a_fault_whose_alternatives_are_other_faults_stays_a_fault():
+    # each explanation alone is doubtful (a spur at c or a short bridge from it), but a sound
+    # ring fits far worse: the circuit is to be investigated, with the look-alike beside it
+    from ringmath.explain import OUTLET_FAULT_P, RING_FAULT_P
+    from ringmath.likelihood import prepare
+    from ringmath.ranking import rank, sound_weight
+    combos, weights = rank(prepare(parse_record(ring_bridged_or_spurred_at_c())))
+    sound = sound_weight(combos, weights)
+    assert sound <= 1 - RING_FAULT_P
+    healthy_fits = sum(w for c, w in zip(combos, weights, strict=True)
+                       if c.fit.code == "healthy")
+    assert 0.0 <= sound <= healthy_fits  # an outlet fault on a sound ring is not a sound ring
+    spur = combos[0].local[0]
+    assert combos[0].fit.code == "healthy" and spur.code == "unrecorded_spur"
+    assert weights[0] * spur.confidence() < OUTLET_FAULT_P  # doubtful on its own
+    result = diagnose(ring_bridged_or_spurred_at_c())
+    assert result["verdict"] == "investigate"
+    lead = result["findings"][0]
+    assert (lead["code"], lead["severity"], lead["possible"]) == ("unrecorded_spur", "fault",
+                                                                  False)
+    assert any(f["code"] == "look_alike" for f in result["findings"])
+
+
+def test_a_sound_clean_ring_is_sound_by_the_posterior():
+    from ringmath.likelihood import prepare
+    from ringmath.ranking import rank, sound_weight
+    combos, weights = rank(prepare(_complete_test()))
+    assert sound_weight(combos, weights) > 0.9
 
 
 @pytest.mark.parametrize("basis", ["ring", "outlet", "setup"])
