@@ -63,6 +63,8 @@ CONDITIONS = (
                                    cpc_declared=False)),
     Condition("meter", "unsuitable meter: steps 2–3 read x1.8–2.3 (set-up error)",
               lambda rng: Nuisance(meter_scale=float(rng.uniform(1.8, 2.3)))),
+    Condition("join_open", "one cross-connection not made for step 2 or 3 (set-up error)",
+              lambda rng: Nuisance(join_open=("ln", "le")[int(rng.integers(0, 2))])),
     Condition("two", "two faults at once, clean meter", lambda rng: None, pairs=True),
     Condition("typical", "typical site: contact 0.02, leads up to ±0.05 all/one step, 2 % warmer",
               _typical),

@@ -8,7 +8,8 @@ Finding-code conventions the benchmark relies on (the diagnosis names its codes 
   ``setup_lead_offset`` (leads not nulled or drifting), ``setup_socket_contacts`` (outlets
   reading high from the front), ``setup_instrument`` (a scale error, an unsuitable meter,
   readings that cannot all be true), ``setup_gain`` (steps 2–3 scaled against step 1, e.g. a
-  warmer cable), ``setup_scatter`` (reading scatter too large to judge); any other
+  warmer cable), ``setup_scatter`` (reading scatter too large to judge),
+  ``setup_cross_join_open`` (one of a step's cross-connections not made); any other
   ``setup_...`` code is a general "check the set-up" and is right for any set-up error.
   The names in ``SETUP_ALIASES`` are set-up findings too (the diagnosis' own codes:
   ``lead_offset``, ``step_offset``, ``end_to_end_zero`` -> leads; ``socket_contact`` ->
@@ -49,7 +50,8 @@ SETUP_ALIASES = {"lead_offset": "lead", "step_offset": "lead", "end_to_end_zero"
 SETUP_KINDS = (("lead", "lead"), ("contact", "contacts"), ("socket", "contacts"),
                ("front", "contacts"), ("instrument", "instrument"), ("meter", "instrument"),
                ("scale", "instrument"), ("gain", "gain"), ("temperature", "gain"),
-               ("warm", "gain"), ("scatter", "scatter"), ("noise", "scatter"))
+               ("warm", "gain"), ("scatter", "scatter"), ("noise", "scatter"),
+               ("join", "join"))
 METALLIC_CODES = {"parallel_earth_path", "metallic_cpc", "cpc_metallic"}
 #: A lead offset up to this (ohms, either sign) leaves a sound ring satisfactory: it is part
 #: of the "typical site". Beyond it the readings must be re-taken (named as a set-up error).
@@ -86,6 +88,8 @@ def must_report(truth) -> set[str]:
         out.add("contacts")
     if abs(n.meter_scale - 1.0) > 0.1:
         out.add("instrument")
+    if n.join_open:
+        out.add("join")
     return out
 
 

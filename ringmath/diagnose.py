@@ -18,7 +18,7 @@ import numpy as np
 from ringmath import calibration, checks, explain, messages, ranking, rules, setup_messages, zs
 from ringmath import verdict as verdicts
 from ringmath.findings import Finding
-from ringmath.fitting import Fit, position_posterior
+from ringmath.fitting import SETUP_FITS, Fit, position_posterior
 from ringmath.likelihood import Prepared, prepare, t_grid
 from ringmath.record import RingTest, format_reading, parse_record
 from ringmath.verdict import LEADING_CODES, complete
@@ -29,7 +29,7 @@ from ringmath.verdict import LEADING_CODES, complete
 #: joint's place is rarely right above 0.06 (step 2 shifts evenly and step 3 only shows a gap).
 LOCATE_SD = {"interconnection": 0.12, "open_conductor": 0.11, "high_resistance_joint": 0.06}
 #: Whole-ring explanations whose readings do not depend on which end an outlet is nearer.
-POSITIONLESS = ("healthy", "wrong_cross_connection")
+POSITIONLESS = ("healthy", "wrong_cross_connection", *SETUP_FITS)
 #: Two combined explanations closer than this in score (nats) "fit about equally".
 LOOK_ALIKE_NATS = 2.0
 #: Highest confidence ever stated, and the highest with a whole step missing (see _cap).
@@ -93,6 +93,12 @@ def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
                            explain.RING_FAULT_P, some_fault)
 
 
+def _median(x: np.ndarray) -> float | None:
+    """The median of the finite readings of ``x`` (ohms), None when there are none."""
+    x = x[np.isfinite(x)]
+    return float(np.median(x)) if x.size else None
+
+
 def _fit_words(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
                place: np.ndarray, names: dict) -> Finding:
     """``_fit_finding`` before its severity is graded by confidence."""
@@ -106,6 +112,11 @@ def _fit_words(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
         msg, nxt = messages.interconnection(_named(inside, names), located)
         return Finding("interconnection", "fault", msg, nxt, tuple(inside if located else ()),
                        confidence=confidence, section=(a, b), basis="ring")
+    if fit.code in SETUP_FITS:
+        msg, nxt = setup_messages.cross_join_open(fit.step, *fit.ring_ohm, _median(
+            prep.ln_ohm if fit.step == "ln" else prep.le_ohm))
+        return Finding(fit.code, "warning", msg, nxt, step=fit.step, confidence=confidence,
+                       basis="setup")
     if fit.code == "wrong_cross_connection":
         msg, nxt = messages.wrong_cross(fit.step)
         return Finding("wrong_cross_connection", "fault", msg, nxt, step=fit.step,
@@ -198,10 +209,11 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
         found = explain.setup_finding(best.setup, prep, cap(p_setup * best.setup.p_kind))
         if found is not None:
             findings.insert(0, found)
-    independent = (best_fit.code != "healthy") + sum(
+    independent = (best_fit.code != "healthy" and best_fit.code not in SETUP_FITS) + sum(
         lf.code != "setup_socket_contacts" for lf in best.local)
     if independent >= MANY_FAULTS:
-        codes = ([best_fit.code] if best_fit.code != "healthy" else []) + [
+        codes = ([best_fit.code] if best_fit.code != "healthy"
+                 and best_fit.code not in SETUP_FITS else []) + [
             lf.code for lf in best.local if lf.code != "setup_socket_contacts"]
         msg, nxt = setup_messages.many_faults(independent, codes)
         findings = [Finding("setup_readings_inconsistent", "warning", msg, nxt,
@@ -236,7 +248,10 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
 
 def _basis(combo) -> str:
     """What a combination's confidence rests on (``findings.BASES``): its whole-ring fault,
-    else its outlet faults, else its set-up error; a sound ring is a whole-ring claim."""
+    else its outlet faults, else its set-up error (or a slip of the test read as a whole-ring
+    fit, ``SETUP_FITS``); a sound ring is a whole-ring claim."""
+    if combo.fit.code in SETUP_FITS:
+        return "setup"
     if combo.fit.code == "healthy" and combo.local:
         return "outlet"
     if combo.fit.code == "healthy" and combo.setup is not None:

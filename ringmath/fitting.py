@@ -47,7 +47,12 @@ PRIORS = {
     "open_conductor": 0.03,
     "high_resistance_joint": 0.03,
     "wrong_cross_connection": 0.04,
+    # one of a step's two cross-connections not made (a clip off, a join forgotten): a slip of
+    # the test itself, about as common as crossing the ends (our working figure), per step
+    "setup_cross_join_open": 0.02,
 }
+#: Whole-ring fits that are slips of the test itself on sound wiring, not wiring faults.
+SETUP_FITS = frozenset({"setup_cross_join_open"})
 #: Smallest series joint worth naming, ohms (smaller ones hide in cable tolerance).
 JOINT_MIN_OHM = 0.03
 
@@ -102,22 +107,30 @@ def _with_probe(theta_marks: np.ndarray, g: int) -> np.ndarray:
     return np.concatenate([probe, np.repeat(theta_marks, g, axis=0)], axis=1)
 
 
-def fit_healthy(prep: Prepared, wrong_step: str | None = None) -> Fit:
-    """Sound ring (with the recorded spurs), or a wrong cross-connection in one step.
+def fit_healthy(prep: Prepared, wrong_step: str | None = None,
+                half_step: str | None = None) -> Fit:
+    """Sound ring (with the recorded spurs), a wrong cross-connection in one step, or one of a
+    step's two cross-connections not made.
 
     wrong_step: None, "ln" (step 2 joined L1-N1, L2-N2) or "le" (step 3 joined L1-CPC1, L2-CPC2).
+    half_step: None, "ln" (step 2 with only L1-N2 joined: each reading is the one path in
+    series, t·r1 + (1-t)·rn, (r1 + rn)/2 everywhere when r1 = rn) or "le" (the same for step 3).
     """
     ring = prep.e2e_ohm.copy()
     marks = t_grid(G_FINE)[:, None]
     rings = np.tile(ring, (G_FINE, 1))
-    ln, le = _steps(PLAIN, marks, rings,
-                    ln_step="ln_wrong" if wrong_step == "ln" else "ln",
-                    le_step="le_wrong" if wrong_step == "le" else "le")
+
+    def step(name: str) -> str:
+        return f"{name}_half" if half_step == name else (
+            f"{name}_wrong" if wrong_step == name else name)
+
+    ln, le = _steps(PLAIN, marks, rings, ln_step=step("ln"), le_step=step("le"))
     cons = e2e_consistency(ring, prep)
     ll, sd = _final(prep, ln, le, cons)
-    code = "healthy" if wrong_step is None else "wrong_cross_connection"
-    return Fit(code, None, wrong_step, ll, 0, {}, tuple(ring), ln, le, contact_sd=sd,
-               scatter_cons=_scatter_cons(cons))
+    code = ("setup_cross_join_open" if half_step else
+            "healthy" if wrong_step is None else "wrong_cross_connection")
+    return Fit(code, None, half_step or wrong_step, ll, 0, {}, tuple(ring), ln, le,
+               contact_sd=sd, scatter_cons=_scatter_cons(cons))
 
 
 def _scatter_cons(cons) -> np.ndarray:
@@ -285,6 +298,7 @@ def fit_all(prep: Prepared) -> list[Fit]:
         healthy = fit_healthy(prep)
         s_index = search_index(healthy.contact_sd)
         fits += [healthy, fit_healthy(prep, "ln"), fit_healthy(prep, "le"),
+                 fit_healthy(prep, half_step="ln"), fit_healthy(prep, half_step="le"),
                  fit_bridge(prep, s_index)]
     for conductor in CONDUCTOR_INDEX:
         fits.append(fit_open(prep, conductor, s_index))

@@ -188,6 +188,9 @@ def headline(code: str, conductor: str | None = None, step: str | None = None,
         return "The readings look offset: null the leads and re-take them."
     if code in ("setup_instrument", "setup_readings_inconsistent"):
         return "These readings cannot all be true: check the test set-up or the instrument."
+    if code == "setup_cross_join_open":
+        return (f"One cross-connection looks not made for {_STEP_NAMES[step]}: make both "
+                "joins and repeat that step.")
     return "A fault needs checking."
 
 
@@ -197,7 +200,7 @@ def look_alike(first: str, second: str) -> str:
     if pair == {"interconnection", "unrecorded_spur"}:
         return ("A short bridge and an unrecorded spur give similar readings here. Count the "
                 "cables at the outlets concerned: a spur has one cable, a bridged point three.")
-    if "wrong_cross_connection" in pair:
+    if pair & {"wrong_cross_connection", "setup_cross_join_open"}:
         return "Check the joins at the board and repeat the step; the repeat tells them apart."
     return ("Two explanations fit these readings about equally; inspect the outlets named in "
             "both before deciding.")

@@ -12,7 +12,8 @@ J ohms, 0 for a break. *Extra* edges join the left sides of two marks in every c
 * ``e2e:line`` / ``e2e:neutral`` / ``e2e:cpc``: one conductor alone, read end 1 to end 2 (step 1).
 * ``ln``: L1–N2 and L2–N1 joined, read L–N at the mark (step 2).
 * ``ln_wrong``: L1–N1 and L2–N2 joined (a wrong cross-connection), read L–N.
-* ``le`` / ``le_wrong``: the same with the cpc in place of the neutral (step 3).
+* ``ln_half``: L1–N2 joined but L2–N1 not (one cross-connection not made), read L–N.
+* ``le`` / ``le_wrong`` / ``le_half``: the same with the cpc in place of the neutral (step 3).
 * ``service``: all four line and cpc ends joined at the board, read L–cpc: the in-service
   R1+R2 at the mark.
 
@@ -38,8 +39,10 @@ _STEPS = {
     "e2e:cpc": (("cpc",), (), "ends"),
     "ln": (("line", "neutral"), ((0, 0, 1, 1), (0, 1, 1, 0)), "mark"),
     "ln_wrong": (("line", "neutral"), ((0, 0, 1, 0), (0, 1, 1, 1)), "mark"),
+    "ln_half": (("line", "neutral"), ((0, 0, 1, 1),), "mark"),
     "le": (("line", "cpc"), ((0, 0, 1, 1), (0, 1, 1, 0)), "mark"),
     "le_wrong": (("line", "cpc"), ((0, 0, 1, 0), (0, 1, 1, 1)), "mark"),
+    "le_half": (("line", "cpc"), ((0, 0, 1, 1),), "mark"),
     "service": (("line", "cpc"), ((0, 0, 0, 1), (0, 0, 1, 0), (0, 0, 1, 1)), "mark"),
 }
 STEPS = tuple(_STEPS)

@@ -83,6 +83,31 @@ def instrument(factor: float, ratios: str) -> tuple[str, str]:
     return msg, nxt
 
 
+def cross_join_open(step: str, r1_ohm: float, rn_ohm: float, r2_ohm: float,
+                    median_ohm: float | None) -> tuple[str, str]:
+    """One of a step's two cross-connections not made: each reading is then the one path
+    round the ring in series, t·r1 + (1 − t)·rn (step 2; r2 for step 3), instead of two in
+    parallel (star reduction, ``ringmath.star``)."""
+    other, pair, join = (("rn", rn_ohm, "L1–N2 and L2–N1") if step == "ln"
+                         else ("r2", r2_ohm, "L1–CPC2 and L2–CPC1"))
+    seen = "" if median_ohm is None else f" (measured median {median_ohm:.2f} Ω)"
+    if abs(r1_ohm - pair) < 0.05 * max(r1_ohm, pair):
+        shape = (f"about (r1 + {other})/2 = {(r1_ohm + pair) / 2:.2f} Ω at every outlet, twice "
+                 f"the (r1 + {other})/4 = {(r1_ohm + pair) / 4:.2f} Ω a ring reads")
+    else:
+        lo, hi = sorted((r1_ohm, pair))
+        shape = (f"spread from about {lo:.2f} to {hi:.2f} Ω along the ring (r1 at one end, "
+                 f"{other} at the other), where a ring reads at most (r1 + {other})/4 = "
+                 f"{(r1_ohm + pair) / 4:.2f} Ω")
+    msg = (f"The {_STEP[step]} readings fit a test with only one of its two cross-connections "
+           f"made: each reading is then the one path round the ring in series, {shape}"
+           f"{seen}; inferred from the pattern. It says nothing about the wiring: the "
+           f"readings of that step cannot be used.")
+    nxt = (f"Make both joins at the board ({join}), check each with the meter, then repeat "
+           f"{_STEP[step]} at every outlet.")
+    return msg, nxt
+
+
 def many_faults(count: int, codes: list[str]) -> tuple[str, str]:
     """The best explanation needs several independent faults at once."""
     msg = (f"The best explanation of these readings needs {count} separate faults at once "

@@ -241,8 +241,8 @@ def simulate(rng: np.random.Generator, fault: str | None = None, n_ring: int | N
             if n.contact_sd_ohm else np.zeros(len(keys))
         if n.metallic_cpc:
             true = true_readings(wiring, keys)
-        site = true_readings(wiring, keys, warm=n.warm, contacts=contacts) \
-            if (n.warm or contacts) else true
+        site = true_readings(wiring, keys, warm=n.warm, contacts=contacts, half=n.join_open) \
+            if (n.warm or contacts or n.join_open) else true
         # the contacts are in series with the probes: each reading gains its two pins' ohms
         worn = {oid: (c_l + c_n, c_l + c_e) for oid, (c_l, c_n, c_e) in contacts.items()}
     else:

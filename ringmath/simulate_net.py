@@ -21,7 +21,8 @@ from ringmath.conductors import resistance_mohm_per_m
 from ringmath.nodal import Netlist
 
 CONDUCTORS = ("L", "N", "E")
-READ_STEPS = ("e2e:L", "e2e:N", "e2e:E", "ln", "le", "ln_wrong", "le_wrong", "service")
+READ_STEPS = ("e2e:L", "e2e:N", "e2e:E", "ln", "le", "ln_wrong", "le_wrong", "ln_half",
+              "le_half", "service")
 
 
 @dataclass(frozen=True)
@@ -158,7 +159,8 @@ def reading_ohm(w: Wiring, step: str, outlet: str | None = None, *, warm: float 
 
     step: "e2e:L" / "e2e:N" / "e2e:E" (step 1, one conductor end to end), "ln" / "le" (steps 2
     and 3 at ``outlet`` with L1–N2, L2–N1 or L1–CPC2, L2–CPC1 joined), "ln_wrong" /
-    "le_wrong" (the ends joined L1–N1, L2–N2), "service" (all line and cpc ends joined: the
+    "le_wrong" (the ends joined L1–N1, L2–N2), "ln_half" / "le_half" (only L1–N2 or L1–CPC2
+    joined: one cross-connection not made), "service" (all line and cpc ends joined: the
     in-service R1+R2 at ``outlet``). warm: every wiring resistance is (1 + warm) times its
     step 1 value (a warmer cable on the day of steps 2–3). contact_ohm: (line pin, other pin)
     contact resistance of a plug-in lead at the socket front, in series with each probe.
@@ -186,6 +188,8 @@ def reading_ohm(w: Wiring, step: str, outlet: str | None = None, *, warm: float 
     elif step in ("ln_wrong", "le_wrong"):
         net.add("L:end0", f"{other}:end0", 0.0)
         net.add("L:end1", f"{other}:end1", 0.0)
+    elif step in ("ln_half", "le_half"):
+        net.add("L:end0", f"{other}:end1", 0.0)
     else:
         for n in ("L:end1", "E:end0", "E:end1"):
             net.add("L:end0", n, 0.0)
@@ -233,13 +237,15 @@ def signal_ohm(true: list[float], keys, ring_ids: set, cable_cpc: bool) -> float
     return float(worst)
 
 
-def true_readings(wiring: Wiring, keys, warm: float = 0.0, contacts=None) -> list[float]:
+def true_readings(wiring: Wiring, keys, warm: float = 0.0, contacts=None,
+                  half: str | None = None) -> list[float]:
     """True resistance in ohms of every reading in ``keys`` order: ("e2e", "L" | "N" | "E",
     None) for step 1, ("ln" | "le", _, outlet id) for steps 2–3 (crossed ends where the wiring
-    has them). warm and contacts (outlet id -> line, neutral, cpc pin ohms) act on steps 2–3."""
+    has them). warm and contacts (outlet id -> line, neutral, cpc pin ohms) act on steps 2–3;
+    half ("ln" | "le"): that step read with one of its two cross-connections not made."""
     wired = edges(wiring)
-    steps = {"ln": "ln_wrong" if wiring.wrong == "ln" else "ln",
-             "le": "le_wrong" if wiring.wrong == "le" else "le"}
+    steps = {k: f"{k}_half" if half == k else f"{k}_wrong" if wiring.wrong == k else k
+             for k in ("ln", "le")}
     out = []
     for kind, c, oid in keys:
         if kind == "e2e":

@@ -15,7 +15,9 @@ the ranges seen on site. Each acts where it physically acts:
 * a metallic cpc: steel conduit bonded at every box, in parallel with the cable's cpc core
   ("parallel") or as the only cpc ("instead"); declared on the record or not;
 * an unsuitable instrument: every step 2 and step 3 reading ``meter_scale`` times what it
-  should be.
+  should be;
+* one cross-connection not made (a clip off, a join forgotten): step ``join_open`` ("ln" or
+  "le") read with only L1–N2 (L1–CPC2) joined, in the netlist.
 
 Values here are our own working assumptions of what a site shows (common practice), not from
 a standard. Everything random comes from the ``numpy.random.Generator`` passed in.
@@ -63,6 +65,7 @@ class Nuisance:
     cpc_declared: bool = True
     meter_scale: float = 1.0
     remeasure: bool = False
+    join_open: str | None = None
 
     def __post_init__(self):
         checks = (
@@ -76,6 +79,7 @@ class Nuisance:
             ("front_marks", self.front_marks in FRONT_MARKS),
             ("metallic_cpc", self.metallic_cpc in METALLIC),
             ("meter_scale", 0.2 <= self.meter_scale <= 5.0),
+            ("join_open", self.join_open in (None, "ln", "le")),
         )
         for name, ok in checks:
             if not ok:
@@ -103,6 +107,8 @@ class Nuisance:
                        + ("" if self.cpc_declared else " undeclared"))
         if self.meter_scale != 1.0:
             out.append(f"meter scale x{self.meter_scale:.2f}")
+        if self.join_open:
+            out.append(f"one cross-connection open on {self.join_open}")
         return tuple(out)
 
 

@@ -8,6 +8,7 @@ board joins of each step then leave at most two paths between the two centres, s
 * step 1 of one conductor (end 1 to end 2):      R = p0 + p1
 * ``ln`` / ``le`` (L1 joined to N2, L2 to N1):   R = pt + qt + (p0 + q1) ∥ (p1 + q0)
 * ``ln_wrong`` / ``le_wrong`` (L1–N1, L2–N2):    R = pt + qt + (p0 + q0) ∥ (p1 + q1)
+* ``ln_half`` / ``le_half`` (L1–N2 only):         R = pt + qt + p0 + q1 (one path, in series)
 * ``service`` (all four ends joined):            R = pt + qt + (p0 ∥ p1) + (q0 ∥ q1)
 
 with p the line's arms, q the neutral's or cpc's, and x ∥ y = xy / (x + y). A healthy ring
@@ -131,6 +132,8 @@ def step_readings(layout: Layout, step: str, positions: np.ndarray, ring_ohm: np
             r = pt + qt + _par(p0 + q1, p1 + q0)
         elif step in ("ln_wrong", "le_wrong"):
             r = pt + qt + _par(p0 + q0, p1 + q1)
+        elif step in ("ln_half", "le_half"):
+            r = pt + qt + p0 + q1
         else:  # service
             r = pt + qt + _par(p0, p1) + _par(q0, q1)
     return np.where(r > OPEN_OHM, np.inf, r)

@@ -25,7 +25,8 @@ from ringmath.findings import BASES, Finding
 from ringmath.record import RingTest
 
 #: Findings that doubt the readings themselves: they lead, and the verdict is "retest".
-LEADING_CODES = frozenset({"setup_instrument", "setup_readings_inconsistent"})
+LEADING_CODES = frozenset({"setup_instrument", "setup_readings_inconsistent",
+                           "setup_cross_join_open"})
 #: Set-up findings that call for a re-test when no credible fault stands.
 RETEST_CODES = frozenset({"setup_lead_offset", "setup_lead_offset_step", "setup_socket_contacts",
                           "end_to_end_zero"})

@@ -235,6 +235,32 @@ def test_the_netlist_matches_the_closed_form_of_a_sound_ring():
                                                            abs=1e-6)
 
 
+@pytest.mark.parametrize("step", ["ln", "le"])
+def test_one_cross_connection_not_made_reads_the_one_path_in_series(step):
+    # With only L1-N2 joined the probe sees one path round the ring: line from the outlet to
+    # end 1, the join, neutral from end 2 back: t·r1 + (1 - t)·rn (resistors in series, Ohm's
+    # law; rn -> r2 for step 3). With r1 = rn that is (r1 + rn)/2 at every outlet, twice the
+    # (r1 + rn)/4 of a ring (common practice: "readings about double" means a join is off).
+    w = _hand_ring()
+    r1, rn, r2 = w.cable_ohm()
+    other = rn if step == "ln" else r2
+    for p in w.ring:
+        t = p.pos
+        assert reading_ohm(w, f"{step}_half", p.id) == pytest.approx(t * r1 + (1 - t) * other,
+                                                                    abs=1e-6)
+        # the diagnosis' own network model (ringmath.network, nodal analysis) agrees
+        assert _network(f"{step}_half", t, r1, rn, r2) == pytest.approx(
+            t * r1 + (1 - t) * other, abs=1e-5)
+    # and the simulator puts it on that step only
+    clean, _ = _sim(8, ideal_meter=True)
+    slip, _ = _sim(8, ideal_meter=True, nuisance=Nuisance(join_open=step))
+    assert _e2e(slip) == _e2e(clean)
+    kept = "le" if step == "ln" else "ln"
+    for a, b in zip(clean["outlets"], slip["outlets"], strict=True):
+        assert b[kept] == pytest.approx(a[kept], abs=1e-9)
+        assert b[step] >= a[step] - 1e-9  # one path never reads less than two in parallel
+
+
 @pytest.mark.parametrize(("conductor", "ln_open", "le_open"), [
     ("line", True, True), ("neutral", True, False), ("cpc", False, True)])
 def test_a_core_off_one_outlets_terminal_reads_open_there_only(conductor, ln_open, le_open):
@@ -287,7 +313,7 @@ def test_bad_simulator_arguments_name_the_field(kwargs, field):
     ({"contact_sd_ohm": -0.01}, "contact_sd_ohm"), ({"contact_tail": "cauchy"}, "contact_tail"),
     ({"lead_step": "r1"}, "lead_step"), ({"worn_ohm": (0.6, 0.1)}, "worn_ohm"),
     ({"metallic_cpc": "plastic"}, "metallic_cpc"), ({"meter_scale": 0.0}, "meter_scale"),
-    ({"front_marks": "back"}, "front_marks")])
+    ({"front_marks": "back"}, "front_marks"), ({"join_open": "r1"}, "join_open")])
 def test_bad_nuisances_name_the_field(kwargs, field):
     with pytest.raises(ValueError, match=field):
         Nuisance(**kwargs)
