@@ -18,7 +18,7 @@ import numpy as np
 from ringmath import calibration, checks, explain, messages, ranking, rules, setup_messages, zs
 from ringmath import verdict as verdicts
 from ringmath.findings import Finding
-from ringmath.fitting import SETUP_FITS, Fit, position_posterior
+from ringmath.fitting import SETUP_FITS, Fit, position_posterior, wiring_fault
 from ringmath.likelihood import Prepared, prepare, t_grid
 from ringmath.record import RingTest, format_reading, parse_record
 from ringmath.verdict import LEADING_CODES, complete
@@ -209,11 +209,10 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
         found = explain.setup_finding(best.setup, prep, cap(p_setup * best.setup.p_kind))
         if found is not None:
             findings.insert(0, found)
-    independent = (best_fit.code != "healthy" and best_fit.code not in SETUP_FITS) + sum(
+    independent = wiring_fault(best_fit.code) + sum(
         lf.code != "setup_socket_contacts" for lf in best.local)
     if independent >= MANY_FAULTS:
-        codes = ([best_fit.code] if best_fit.code != "healthy"
-                 and best_fit.code not in SETUP_FITS else []) + [
+        codes = ([best_fit.code] if wiring_fault(best_fit.code) else []) + [
             lf.code for lf in best.local if lf.code != "setup_socket_contacts"]
         msg, nxt = setup_messages.many_faults(independent, codes)
         findings = [Finding("setup_readings_inconsistent", "warning", msg, nxt,
@@ -232,7 +231,8 @@ def _fitted(test: RingTest, prep: Prepared) -> dict:
     if len(combos) > 1 and combos[0].score - combos[1].score < LOOK_ALIKE_NATS:
         first = _lead_code(combos[0])
         second = _lead_code(combos[1])
-        if first != second and "healthy" not in (first, second):
+        setups = sum(code.startswith("setup_") for code in (first, second))
+        if first != second and "healthy" not in (first, second) and setups < 2:
             findings.append(Finding("look_alike", "info", messages.look_alike(first, second),
                                     confidence=cap(float(weights[1])),
                                     basis=_basis(combos[1])))
@@ -260,8 +260,12 @@ def _basis(combo) -> str:
 
 
 def _lead_code(combo) -> str:
+    """The code a combination is known by: its whole-ring fault, else its first outlet
+    fault, else its set-up error; "healthy" for a sound ring as read."""
     if combo.fit.code == "healthy" and combo.local:
         return combo.local[0].code
+    if combo.fit.code == "healthy" and combo.setup is not None:
+        return explain.setup_code(combo.setup.kind)
     return combo.fit.code
 
 

@@ -87,18 +87,24 @@ def ratios_text(prep: Prepared) -> str:
     return "; ".join(parts) if parts else "no step 2 or 3 readings"
 
 
+def setup_code(kind: str) -> str:
+    """The finding code of a set-up error kind (``setup_errors.SETUP_PRIORS``)."""
+    return {"scale": "setup_instrument", "gain": "setup_gain",
+            "leads": "setup_lead_offset"}.get(kind, "setup_lead_offset_step")
+
+
 def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | None:
     """The finding for a set-up error, or None when it is too small to matter."""
     ratios = ratios_text(prep)
     if setup.kind == "scale":
         msg, nxt = setup_messages.instrument(1 + setup.gain, ratios)
-        return Finding("setup_instrument", "warning", msg, nxt, confidence=confidence,
+        return Finding(setup_code(setup.kind), "warning", msg, nxt, confidence=confidence,
                        basis="setup")
     if setup.kind == "gain":
         if abs(setup.gain) < GAIN_NOTE:
             return None
         msg, nxt = setup_messages.step_gain(setup.gain, ratios)
-        return Finding("setup_gain", "info", msg, nxt, confidence=confidence,
+        return Finding(setup_code(setup.kind), "info", msg, nxt, confidence=confidence,
                        basis="setup")
     d = setup.offset_ohm
     if abs(d) < OFFSET_NOTE_OHM:
@@ -110,12 +116,12 @@ def setup_finding(setup: Setup, prep: Prepared, confidence: float) -> Finding | 
         r1, rn, _ = prep.e2e_ohm
         shift = d / 2 + setup.gain * float((r1 + rn - 2 * d) / 4)
         msg, nxt = setup_messages.lead_offset(d, ratios, setup.gain, shift)
-        return Finding("setup_lead_offset", severity, msg, nxt, confidence=confidence,
+        return Finding(setup_code(setup.kind), severity, msg, nxt, confidence=confidence,
                        basis="setup")
     step = setup.kind.split("_")[1]
     # against the other steps the offset alone (the gain is on steps 2 and 3 alike), said apart
     msg, nxt = setup_messages.step_offset(step, d, ratios, setup.gain)
-    return Finding("setup_lead_offset_step", severity, msg, nxt, step=None if step == "r" else step,
+    return Finding(setup_code(setup.kind), severity, msg, nxt, step=None if step == "r" else step,
                    confidence=confidence, basis="setup")
 
 

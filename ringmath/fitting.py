@@ -53,6 +53,13 @@ PRIORS = {
 }
 #: Whole-ring fits that are slips of the test itself on sound wiring, not wiring faults.
 SETUP_FITS = frozenset({"setup_cross_join_open"})
+
+
+def wiring_fault(code: str) -> bool:
+    """A whole-ring fit's code names a fault of the wiring (not a sound ring, not a slip of
+    the test on one)."""
+    return code != "healthy" and code not in SETUP_FITS
+
 #: Smallest series joint worth naming, ohms (smaller ones hide in cable tolerance).
 JOINT_MIN_OHM = 0.03
 

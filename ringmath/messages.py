@@ -202,5 +202,17 @@ def look_alike(first: str, second: str) -> str:
                 "cables at the outlets concerned: a spur has one cable, a bridged point three.")
     if pair & {"wrong_cross_connection", "setup_cross_join_open"}:
         return "Check the joins at the board and repeat the step; the repeat tells them apart."
+    if pair == {"interconnection", "setup_instrument"}:
+        return ("A bridge joining points near both ends of the ring (or a second cable in "
+                "parallel with it) and a meter or set-up that scales every step 2 and 3 reading "
+                "give the same readings here. Check the meter on a known low resistance and the "
+                "joins at the board, then repeat step 2 at two outlets: readings back at about "
+                "(r1 + rn)/4 clear the wiring; the same readings again point to the bridge.")
+    setup = next((c for c in pair if c.startswith("setup_")), None)
+    if setup is not None:
+        return ("A wiring fault and an error of the test itself fit these readings about "
+                "equally. Put the set-up right first (null the leads, check the joins at the "
+                "board and the meter), then repeat the readings that stand out: a real fault "
+                "reads the same again.")
     return ("Two explanations fit these readings about equally; inspect the outlets named in "
             "both before deciding.")

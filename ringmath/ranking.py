@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ringmath.fitting import SETUP_FITS, Fit, fit_all
+from ringmath.fitting import Fit, fit_all, wiring_fault
 from ringmath.likelihood import Prepared, search_index
 from ringmath.local import LocalFault, local_faults
 from ringmath.setup_errors import P_NONE, Setup, correct, fit_setup
@@ -95,12 +95,12 @@ def local_weight(combos: list[Combo], weights: np.ndarray, lf: LocalFault) -> fl
 
 def sound_weight(combos: list[Combo], weights: np.ndarray) -> float:
     """Posterior probability that the wiring is sound: over the combinations whose whole-ring
-    fit is a sound ring (or a slip of the test on one, ``SETUP_FITS``), the weight of each
+    fit is a sound ring (or a slip of the test on one: ``fitting.wiring_fault``), the weight of each
     times the probability that none of its outlet faults is there (worn socket contacts and
     set-up errors are not wiring faults)."""
     total = 0.0
     for c, w in zip(combos, weights, strict=True):
-        if c.fit.code != "healthy" and c.fit.code not in SETUP_FITS:
+        if wiring_fault(c.fit.code):
             continue
         p = float(w)
         for lf in c.local:

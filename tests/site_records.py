@@ -39,3 +39,23 @@ def ring_bridged_or_spurred_at_c() -> dict:
             "outlets": [{"id": i, "label": f"Point {i}", "kind": kind, "spur_from": parent,
                          "fuse_a": fuse, "ln": ln, "le": le}
                         for i, kind, parent, fuse, ln, le in rows]}
+
+
+def ring_read_about_twice_over() -> dict:
+    """A nine-socket ring whose step 2 and 3 readings are all about 2.3 times what r1, rn and
+    r2 imply ((r1+rn)/4 = 0.17 Ω, read 0.37-0.39 Ω): a meter or set-up that scales every
+    reading, or a bridge joining points near both ends of the ring (a second cable in parallel
+    with it), give the same readings. Invented readings (a seeded simulation of a sound ring
+    read with a meter scale of x2.28; the spur a is listed after its parent f)."""
+    rows = [("g", 0.38, 0.50), ("j", 0.38, 0.48), ("h", 0.38, 0.50), ("e", 0.38, 0.50),
+            ("k", 0.39, 0.50), ("m", 0.39, 0.49), ("f", 0.37, 0.50), ("d", 0.38, 0.50),
+            ("c", 0.38, 0.50)]
+    outlets = [{"id": i, "label": f"Point {i}", "kind": "twin_socket", "spur_from": None,
+                "ln": ln, "le": le} for i, ln, le in rows]
+    outlets.append({"id": "a", "label": "Point a", "kind": "single_socket", "spur_from": "f",
+                    "ln": 0.50, "le": 0.66})
+    return {"circuit": {"ocpd": {"standard": "BS EN 60898", "curve": "B", "rating_a": 32},
+                        "live_csa_mm2": 2.5, "cpc_csa_mm2": 1.5, "ze_ohm": 0.23,
+                        "ze_source": "measured", "earthing": "TN-C-S",
+                        "safety": {"isolated": True, "locked_off": True, "proved_dead": True}},
+            "end_to_end": {"r1": 0.34, "rn": 0.34, "r2": 0.55}, "outlets": outlets}

@@ -7,7 +7,11 @@ from dataclasses import replace
 
 import numpy as np
 import pytest
-from site_records import ring_bridged_or_spurred_at_c, ring_with_step_1_read_low
+from site_records import (
+    ring_bridged_or_spurred_at_c,
+    ring_read_about_twice_over,
+    ring_with_step_1_read_low,
+)
 
 from ringmath.diagnose import diagnose
 from ringmath.findings import Finding
@@ -137,6 +141,17 @@ def test_a_fault_whose_alternatives_are_other_faults_stays_a_fault():
     assert (lead["code"], lead["severity"], lead["possible"]) == ("unrecorded_spur", "fault",
                                                                   False)
     assert any(f["code"] == "look_alike" for f in result["findings"])
+
+
+def test_a_set_up_error_that_fits_nearly_as_well_as_a_fault_is_named_beside_it():
+    # every reading about twice what step 1 implies: a bridge near both ends and a scaling
+    # meter fit alike; whichever leads, the tester is told of the other and what separates them
+    result = diagnose(ring_read_about_twice_over())
+    codes = [f["code"] for f in result["findings"]]
+    assert "interconnection" in codes or codes[0] == "setup_instrument"
+    alike = next(f for f in result["findings"] if f["code"] == "look_alike")
+    assert "meter" in alike["message"] and "bridge" in alike["message"]
+    assert 0 < alike["confidence"] < 1
 
 
 def test_a_sound_clean_ring_is_sound_by_the_posterior():
