@@ -7,7 +7,7 @@ import base64
 import re
 
 from fieldapp.drawings import point_names
-from fieldapp.labels import KIND_WORDS, outlet_name
+from fieldapp.labels import KIND_WORDS, outlet_name, severity_word
 from fieldapp.sheets.words import (
     DASH,
     NO_BAND,
@@ -123,7 +123,7 @@ def _findings(diagnosis: dict, names: dict[str, str], labels: dict) -> list[dict
         return outlet_name(names.get(str(oid), oid), labels.get(str(oid)))
 
     return [{
-        "severity": (f.get("severity") or "").upper(),
+        "severity": severity_word(f.get("severity")).upper(),  # the screens' words
         "message": f.get("message") or "",
         "next_check": f.get("next_check") or "",
         "outlets": ", ".join(outlet(o) for o in f.get("outlets") or []),

@@ -119,6 +119,18 @@ def test_holds_circuits_readings_and_verdicts(printed):
     assert "Idris Calloway" in flat and "28 Nov 2026 08:30 UTC" in flat
 
 
+def test_findings_carry_the_same_severity_words_as_the_screens(printed):
+    # one set of words for a finding's weight (fieldapp.labels.SEVERITY_WORDS), on the results
+    # page and on paper alike; the sheet once printed the internal "warning" / "info"
+    from fieldapp.labels import SEVERITY_WORDS
+    _, diagnoses, _, pages, _ = printed
+    flat = " ".join(" ".join(pages).split())
+    for diagnosis in diagnoses:
+        for f in diagnosis["findings"]:
+            assert f"{SEVERITY_WORDS[f['severity']].upper()}" in flat
+    assert "WARNING" not in flat and "INFO:" not in flat and "INFO ·" not in flat
+
+
 def test_every_page_has_cautions_and_its_number(printed):
     pages = printed[3]
     for number, text in enumerate(pages, start=1):
