@@ -63,23 +63,33 @@ def verdict(test: RingTest, findings: list[Finding]) -> str:
     if findings and findings[0].code in LEADING_CODES:
         return "retest"
     # a Zs over the limit at outlets whose readings look like worn socket contacts waits for
-    # the re-measure at the terminals (the front reading overstates R1+R2)
-    worn = {o for f in findings if f.severity == "warning" and f.code in (
-        "setup_socket_contacts", "unrecorded_spur", "high_resistance_joint") for o in f.outlets}
-    if any(f.severity == "fault" and not (f.code == "zs_over_limit" and f.outlets
-                                          and set(f.outlets) <= worn) for f in findings):
+    # the re-measure at the terminals (the front reading overstates R1+R2): a re-test, never
+    # a pass
+    worn = {o for f in findings if _front_suspect(f) for o in f.outlets}
+    waiting = [f for f in findings if f.severity == "fault" and f.code == "zs_over_limit"
+               and f.outlets and set(f.outlets) <= worn]
+    if any(f.severity == "fault" and f not in waiting for f in findings):
         return "investigate"
     if any(credible(f) for f in findings):
         return "investigate"
-    if any(f.code in RETEST_CODES and f.severity == "warning" for f in findings):
+    if waiting or any(f.code in RETEST_CODES and f.severity == "warning" for f in findings):
         return "retest"
     return "satisfactory" if complete(test) else "incomplete"
 
 
+def _front_suspect(f: Finding) -> bool:
+    """A warning about outlets whose readings may be their socket contacts (read from the
+    front): worn contacts named as such, or an outlet fault that waits for the re-measure."""
+    return f.severity == "warning" and f.code in (
+        "setup_socket_contacts", "unrecorded_spur", "high_resistance_joint")
+
+
 def _retest_lead(findings: list[Finding]) -> Finding:
     """The finding a "retest" verdict is about: the first that doubts the readings or calls for
-    a set-up check, else the first finding (``findings`` is not empty)."""
-    return next((f for f in findings if f.code in LEADING_CODES | RETEST_CODES), findings[0])
+    a set-up check, else the first whose outlets wait for a re-measure at the terminals, else
+    the first finding (``findings`` is not empty)."""
+    return next((f for f in findings if f.code in LEADING_CODES | RETEST_CODES),
+                next((f for f in findings if _front_suspect(f)), findings[0]))
 
 
 def agree(test: RingTest, findings: list[Finding]) -> tuple[str, list[Finding]]:
@@ -104,7 +114,8 @@ def summary(result: str, findings: list[Finding], names: dict[str, str]) -> str:
     if result == "retest" and findings:
         lead = _retest_lead(findings)
         shown = [names.get(o, o) for o in lead.outlets] if len(lead.outlets) <= 2 else []
-        return messages.headline(lead.code, lead.conductor, lead.step, shown)
+        said = messages.possible_headline if lead.possible else messages.headline
+        return said(lead.code, lead.conductor, lead.step, shown)
     faults = [f for f in findings if f.severity == "fault"] or [
         f for f in findings if credible(f)]
     if faults:
