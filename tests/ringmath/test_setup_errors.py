@@ -354,3 +354,21 @@ def test_the_same_rise_read_at_the_terminals_is_a_fault(taken_at):
     lead = result["findings"][0]
     assert (lead["code"], lead["severity"], lead["possible"]) == ("unrecorded_spur", "fault",
                                                                   False)
+
+
+@pytest.mark.parametrize("step", ["ln", "le"])
+def test_the_join_off_hypothesis_is_only_fitted_where_a_step_reads_above_any_ring(step):
+    # one join off: every reading >= min(a, b), at least 1.5 x the (a + b)/4 a ring point can
+    # read at most (series path; 2.5/1.5 mm²: r1 / ((r1 + r2)/4) = 4/2.63 = 1.52)
+    from ringmath.fitting import HALF_STEP_MEDIAN, _reads_above_a_ring
+    from ringmath.likelihood import prepare
+    from ringmath.record import parse_record
+    from ringmath.simulate_nuisance import Nuisance
+    assert 4 / (1 + R2 / R1) > HALF_STEP_MEDIAN  # the gate sits below the least such ratio
+    sound = prepare(parse_record(_record(8)))
+    assert not _reads_above_a_ring(sound, "ln") and not _reads_above_a_ring(sound, "le")
+    record, _ = simulate(np.random.default_rng([2, 31]), None,
+                         nuisance=Nuisance(join_open=step, contact_sd_ohm=0.02))
+    slipped = prepare(parse_record(record))
+    assert _reads_above_a_ring(slipped, step)
+    assert not _reads_above_a_ring(slipped, "le" if step == "ln" else "ln")
