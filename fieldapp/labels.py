@@ -182,6 +182,24 @@ def verdict_word(verdict: str | None) -> str:
     return VERDICT_WORDS.get(verdict or "incomplete", str(verdict))
 
 
+def with_checks(diagnosis: dict | None) -> bool:
+    """A satisfactory verdict with a check still standing (a warning among the findings): it
+    is never shown as a plain pass, on any screen or on paper."""
+    if not diagnosis or diagnosis.get("verdict") != "satisfactory":
+        return False
+    return any(isinstance(f, dict) and f.get("severity") == "warning"
+               for f in diagnosis.get("findings") or [])
+
+
+def assessment_words(diagnosis: dict | None) -> str:
+    """The verdict in words, "Satisfactory, with checks to make" where ``with_checks``;
+    NOT_ASSESSED without a diagnosis."""
+    if not diagnosis:
+        return NOT_ASSESSED
+    words = verdict_word(diagnosis.get("verdict") or "incomplete")
+    return f"{words}, with checks to make" if with_checks(diagnosis) else words
+
+
 def worst_verdict(verdicts) -> str | None:
     """The worst of several verdicts (``VERDICT_ORDER``); None when there are none."""
     found = set(verdicts)

@@ -17,7 +17,7 @@ point verdicts (``points[].ok``) are ringmath's own. Nothing is compared here.
 
 from __future__ import annotations
 
-from fieldapp.labels import SEVERITY_WORDS, ohm, outlet_names, verdict_word
+from fieldapp.labels import SEVERITY_WORDS, assessment_words, ohm, outlet_names, with_checks
 
 #: Two fault explanations whose confidences are within this factor "fit about as well": odds
 #: below about 3.2 to 1 are "not worth more than a bare mention" on Jeffreys' scale of
@@ -139,10 +139,9 @@ def leading(diagnosis: dict | None) -> dict | None:
         summary = top.get("message") or summary  # the dangerous reading leads, in its words
     return {
         "verdict": verdict,
-        "verdict_words": verdict_word(verdict),
-        # satisfactory, yet a check stands (a warning leads): not shown as a plain pass
-        "checks": verdict == "satisfactory" and top is not None
-        and top.get("severity") == "warning",
+        "verdict_words": assessment_words(diagnosis),
+        # satisfactory, yet a check stands: not shown as a plain pass
+        "checks": with_checks(diagnosis),
         "zs_lines": state["lines"],
         "summary": summary,
         "finding": top,

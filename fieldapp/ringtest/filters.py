@@ -63,7 +63,8 @@ def term(word: str, shown: str | None = None) -> Markup:
 
 @bp.app_template_global("circuit_verdict")
 def circuit_verdict(circuit) -> dict:
-    """{"verdict", "words"} for a circuit card; "Not assessed" when it cannot be diagnosed.
+    """{"verdict", "words", "checks"} for a circuit card; "Not assessed" when it cannot be
+    diagnosed.
     One bad circuit never breaks a page that lists several."""
     try:
         diagnosis, reason = diagnose_circuit(circuit)
@@ -71,9 +72,11 @@ def circuit_verdict(circuit) -> dict:
         log.exception("diagnosis failed for circuit %s", circuit.id)
         diagnosis, reason = None, "diagnosis failed"
     if not diagnosis:
-        return {"verdict": "none", "words": labels.NOT_ASSESSED, "reason": reason}
+        return {"verdict": "none", "words": labels.NOT_ASSESSED, "checks": False,
+                "reason": reason}
     verdict = diagnosis.get("verdict") or "incomplete"
-    return {"verdict": verdict, "words": labels.verdict_word(verdict), "reason": None}
+    return {"verdict": verdict, "words": labels.assessment_words(diagnosis),
+            "checks": labels.with_checks(diagnosis), "reason": None}
 
 
 @bp.app_context_processor

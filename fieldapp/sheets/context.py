@@ -89,7 +89,9 @@ def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str
         "result": _zs_result(summary),
     }
     ctx["zs_line"] = _zs_line(summary, ctx["outlets"])
-    ctx["verdict"] = VERDICT_WORDS.get(diagnosis.get("verdict") or "", labels.NOT_ASSESSED)
+    ctx["verdict"] = labels.assessment_words(diagnosis)
+    ctx["verdict_key"] = diagnosis.get("verdict") or "none"
+    ctx["checks"] = labels.with_checks(diagnosis)
     ctx["summary_sentence"] = diagnosis.get("summary") or problem or ""
     ctx["zs_only"] = (ZS_ONLY.get(diagnosis.get("verdict") or "", "")
                       if ctx["summary"]["result"] == _pass_word(True) else "")

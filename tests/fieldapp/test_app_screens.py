@@ -151,3 +151,23 @@ def test_a_new_outlet_takes_the_focus_without_the_page_script(tester, make_circu
     page = parse(tester.get(location))
     focused = page.select("input[autofocus]")
     assert [i["id"] for i in focused] == ["v-r-ln-b"]
+
+
+def test_a_satisfactory_circuit_with_a_check_to_make_is_no_plain_pass_on_the_job_page(
+        tester, make_circuit, parse, app, monkeypatch):
+    # the results page says "Satisfactory, with checks to make" in amber; the job page's card
+    # says the same (it showed a green tick), from the one rule in fieldapp.labels
+    from fieldapp.extensions import db
+    from fieldapp.models import Circuit
+    from fieldapp.ringtest import filters
+
+    cid = make_circuit(e2e=E2E, outlets=SOUND)
+    with app.app_context():
+        job_id = db.session.get(Circuit, cid).job_id
+    checked = {"verdict": "satisfactory", "summary": "Not established, but possible: x.",
+               "findings": [{"code": "unrecorded_spur", "severity": "warning", "message": "m",
+                             "outlets": ["a"], "confidence": 0.9, "possible": True}]}
+    monkeypatch.setattr(filters, "diagnose_circuit", lambda circuit: (checked, None))
+    badge = parse(tester.get(f"/jobs/{job_id}")).select_one(".card .verdict-badge")
+    assert badge.text.strip() == "! Satisfactory, with checks to make"
+    assert "with-checks" in badge["class"]

@@ -193,3 +193,20 @@ def test_a_satisfactory_result_with_a_check_to_make_is_not_shown_as_a_plain_pass
     assert answer.leading(plain)["checks"] is False
     assert answer.leading(checked)["checks"] is True
     assert answer.leading({**checked, "verdict": "investigate"})["checks"] is False
+
+
+def test_the_assessment_in_words_is_one_rule_for_every_screen_and_the_sheet():
+    from fieldapp.sheets.context import _circuit_context
+    warning = {"code": "unrecorded_spur", "severity": "warning", "message": "m",
+               "outlets": [], "confidence": 0.9}
+    checked = {"verdict": "satisfactory", "findings": [warning], "points": [], "circuit": {}}
+    plain = {**checked, "findings": []}
+    assert labels.assessment_words(checked) == "Satisfactory, with checks to make"
+    assert labels.assessment_words(plain) == "Satisfactory"
+    assert labels.assessment_words({**checked, "verdict": "investigate"}) == "Investigate"
+    assert labels.assessment_words(None) == labels.NOT_ASSESSED
+    assert answer.leading(checked)["verdict_words"] == labels.assessment_words(checked)
+    rec = record([socket("a", "Hall")])
+    ctx = _circuit_context(0, rec, checked, None)
+    assert (ctx["verdict"], ctx["verdict_key"], ctx["checks"]) == (
+        "Satisfactory, with checks to make", "satisfactory", True)
