@@ -74,13 +74,14 @@ def _names(rec: dict, diagnosis: dict) -> dict[str, str]:
 
 
 def _named_in(diagnosis: dict) -> dict[str, str]:
-    """Per outlet id, the most serious fault or warning finding that names it ("FAULT",
-    "WARNING"), so the schedule can point at the findings."""
+    """Per outlet id, the most serious fault or warning finding that names it, in the
+    screens' words ("FAULT", "CHECK"), so the schedule can point at the findings."""
     named: dict[str, str] = {}
     for severity in ("warning", "fault"):
         for finding in diagnosis.get("findings") or []:
             if finding.get("severity") == severity:
-                named.update({str(o): severity.upper() for o in finding.get("outlets") or []})
+                named.update({str(o): severity_word(severity).upper()
+                              for o in finding.get("outlets") or []})
     return named
 
 

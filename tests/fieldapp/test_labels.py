@@ -210,3 +210,7 @@ def test_the_assessment_in_words_is_one_rule_for_every_screen_and_the_sheet():
     ctx = _circuit_context(0, rec, checked, None)
     assert (ctx["verdict"], ctx["verdict_key"], ctx["checks"]) == (
         "Satisfactory, with checks to make", "satisfactory", True)
+    # the schedule row points at the finding in the same words (it printed "WARNING")
+    named = {**checked, "findings": [{**warning, "outlets": ["a"]}]}
+    row = _circuit_context(0, rec, named, None)["outlets"][0]
+    assert row["named"] == labels.severity_word("warning").upper() == "CHECK"
