@@ -63,10 +63,13 @@ def verdict(test: RingTest, findings: list[Finding]) -> str:
     if findings and findings[0].code in LEADING_CODES:
         return "retest"
     # a Zs over the limit at outlets whose readings look like worn socket contacts waits for
-    # the re-measure at the terminals (the front reading overstates R1+R2): a re-test, never
-    # a pass
-    front = {o.id for o in test.outlets if o.taken_at == "front"}
-    worn = {o for f in findings if _front_suspect(f) for o in f.outlets} & front
+    # the re-measure at the terminals (a front reading overstates R1+R2): a re-test, never a
+    # pass. Worn contacts named as such, where not read at the terminals; an outlet fault
+    # waiting for that re-measure, where read from the front
+    where = {o.id: o.taken_at for o in test.outlets}
+    worn = {o for f in findings if _front_suspect(f) for o in f.outlets
+            if where.get(o) == "front" or (f.code == "setup_socket_contacts"
+                                           and where.get(o) != "terminals")}
     waiting = [f for f in findings if f.severity == "fault" and f.code == "zs_over_limit"
                and f.outlets and set(f.outlets) <= worn]
     if any(f.severity == "fault" and f not in waiting for f in findings):
@@ -79,9 +82,8 @@ def verdict(test: RingTest, findings: list[Finding]) -> str:
 
 
 def _front_suspect(f: Finding) -> bool:
-    """A warning about outlets whose readings may be their socket contacts (where they were
-    read from the front): worn contacts named as such, or an outlet fault that waits for the
-    re-measure at the terminals."""
+    """A warning about outlets whose readings may be their socket contacts: worn contacts
+    named as such, or an outlet fault that waits for the re-measure at the terminals."""
     return f.severity == "warning" and f.code in (
         "setup_socket_contacts", "unrecorded_spur", "high_resistance_joint")
 

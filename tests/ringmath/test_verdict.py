@@ -195,3 +195,20 @@ def test_a_zs_over_the_limit_waits_for_a_terminal_re_measure_only_where_read_at_
     assert any(f["code"] == "zs_over_limit" and f["outlets"] == ["s3"]
                for f in result["findings"])
     assert result["verdict"] == expected
+
+
+@pytest.mark.parametrize(("taken_at", "expected"), [(None, "retest"), ("front", "retest"),
+                                                     ("terminals", "investigate")])
+def test_worn_contacts_named_at_an_outlet_hold_its_zs_fail_for_the_re_measure(taken_at,
+                                                                              expected):
+    # the diagnosis names worn socket contacts at s3 (its readings high from a plug-in lead)
+    # and s3's Zs is over the limit: the re-measure at the terminals decides, unless s3 was
+    # read at the terminals already
+    base = _complete_test()
+    outlets = [replace(o, taken_at=taken_at) if o.id == "s3" else o for o in base.outlets]
+    test = replace(base, outlets=tuple(outlets) if isinstance(base.outlets, tuple)
+                   else outlets)
+    worn = Finding("setup_socket_contacts", "warning", "contacts", "re-measure", ("s3",),
+                   confidence=0.8, basis="outlet")
+    zs = Finding("zs_over_limit", "fault", "zs", "", ("s3",))
+    assert agree(test, [worn, zs])[0] == expected
