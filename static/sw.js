@@ -17,7 +17,7 @@
 
 importScripts("/static/js/util.js", "/static/js/outbox.js", "/static/js/replay.js");
 
-const VERSION = "ringtest-v17";
+const VERSION = "ringtest-v18";
 const SHELL_CACHE = VERSION + "-shell";
 const PAGE_CACHE = VERSION + "-pages";
 const OFFLINE_PAGE = "/static/offline.html";

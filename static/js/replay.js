@@ -2,7 +2,10 @@
  *
  * RT.replay.run() -> Promise of {sent, refused, outcome}; outcome is "done", "later" (no
  * network or the server is failing: everything left stays waiting, in order), "login" (the
- * session has ended: sign in to send) or "busy" (another tab or the worker is sending).
+ * session has ended: sign in to send) or "busy" (another tab or the worker is sending; the
+ * holder may have read the outbox before the newest item went in, so the run is tried again
+ * BUSY_RETRY_MS later, up to BUSY_RETRIES times in a row: nothing is left unsent for want of a
+ * trigger).
  *
  * Rules: an item is sent only under its own user's session (asked of /api/session first, so a
  * stale page cannot decide it); a 2xx is "sent"; 401 stops and waits for a sign-in; 5xx and
@@ -16,7 +19,10 @@
   "use strict";
   var RT = root.RT = root.RT || {};
   var LOCK = "ringtest-outbox";
+  var BUSY_RETRY_MS = 700;
+  var BUSY_RETRIES = 5;
   var running = null;
+  var busyTries = 0;
 
   function url(item, key) {
     var base = "/api/circuits/" + item.circuitId;
@@ -207,6 +213,12 @@
     running = Promise.resolve(work).then(function (report) {
       running = null;
       notify({ done: true, report: report });
+      if (report.outcome !== "busy") {
+        busyTries = 0;
+      } else if (busyTries < BUSY_RETRIES && root.setTimeout) {
+        busyTries += 1;
+        root.setTimeout(run, BUSY_RETRY_MS);
+      }
       return report;
     }, function () {
       running = null;

@@ -278,6 +278,25 @@ def test_a_refused_replay_is_kept_and_shown_until_discarded(apprentice, live_app
     assert items(page) == []
 
 
+def test_a_send_that_finds_the_outbox_busy_tries_again(apprentice, live_app, context):
+    # another tab (here: the page itself) holds the send lock when the phone comes back online:
+    # the run that finds it busy must try again, not leave the reading waiting for a trigger
+    page = apprentice
+    _, circuit_id = seed_circuit(live_app)
+    open_step(page, circuit_id)
+    context.set_offline(True)
+    try:
+        enter(page, "r-ln-a", "0.27")
+        expect(card(page, "r-ln-a").locator(".queued")).to_be_visible()
+        page.evaluate("""() => { navigator.locks.request("ringtest-outbox",
+            () => new Promise((done) => setTimeout(done, 2500))); }""")
+    finally:
+        context.set_offline(False)
+    expect(card(page, "r-ln-a").locator(".queued")).to_be_hidden(timeout=15000)
+    assert outlet_reading(live_app, circuit_id, "a") == "0.27"
+    assert [i["state"] for i in items(page)] == ["sent"]
+
+
 def set_safety(live_app, circuit_id: int, confirmed: bool) -> None:
     from fieldapp import changes
     from fieldapp.models import Circuit, User
