@@ -249,17 +249,27 @@ def test_an_outlet_added_offline_lands_with_its_readings(apprentice, live_app, c
     assert writes_with(live_app, outlet_item["id"]) == 1
 
 
-def test_a_refused_replay_is_kept_and_shown_until_discarded(apprentice, live_app, context):
-    page = apprentice
+def queued_offline(page, live_app, context, anchor: str, value: str, meanwhile):
+    """Open step 2 of a fresh circuit, enter ``value`` at ``anchor`` offline (it waits on the
+    phone), call ``meanwhile(job_id, circuit_id)`` while still offline, then come back online.
+    Returns (job_id, circuit_id)."""
     job_id, circuit_id = seed_circuit(live_app)
     open_step(page, circuit_id)
     context.set_offline(True)
     try:
-        enter(page, "r-ln-a", "0.27")
-        expect(card(page, "r-ln-a").locator(".queued")).to_be_visible()
+        enter(page, anchor, value)
+        expect(card(page, anchor).locator(".queued")).to_be_visible()
     finally:
-        approve(live_app, job_id)  # the supervisor approves meanwhile
+        meanwhile(job_id, circuit_id)
         context.set_offline(False)
+    return job_id, circuit_id
+
+
+def test_a_refused_replay_is_kept_and_shown_until_discarded(apprentice, live_app, context):
+    page = apprentice
+    # the supervisor approves meanwhile
+    job_id, circuit_id = queued_offline(page, live_app, context, "r-ln-a", "0.27",
+                                        lambda job, _circuit: approve(live_app, job))
     refused = page.locator("#not-accepted")
     expect(refused).to_contain_text("L–N at outlet a = 0.27")
     expect(refused).to_contain_text("approved")
@@ -282,16 +292,9 @@ def test_a_send_that_finds_the_outbox_busy_tries_again(apprentice, live_app, con
     # another tab (here: the page itself) holds the send lock when the phone comes back online:
     # the run that finds it busy must try again, not leave the reading waiting for a trigger
     page = apprentice
-    _, circuit_id = seed_circuit(live_app)
-    open_step(page, circuit_id)
-    context.set_offline(True)
-    try:
-        enter(page, "r-ln-a", "0.27")
-        expect(card(page, "r-ln-a").locator(".queued")).to_be_visible()
+    _, circuit_id = queued_offline(page, live_app, context, "r-ln-a", "0.27", lambda *_: (
         page.evaluate("""() => { navigator.locks.request("ringtest-outbox",
-            () => new Promise((done) => setTimeout(done, 2500))); }""")
-    finally:
-        context.set_offline(False)
+            () => new Promise((done) => setTimeout(done, 2500))); }""")))
     expect(card(page, "r-ln-a").locator(".queued")).to_be_hidden(timeout=15000)
     assert outlet_reading(live_app, circuit_id, "a") == "0.27"
     assert [i["state"] for i in items(page)] == ["sent"]
@@ -312,15 +315,9 @@ def set_safety(live_app, circuit_id: int, confirmed: bool) -> None:
 
 def test_a_refused_reading_entered_again_leaves_the_list(apprentice, live_app, context):
     page = apprentice
-    _, circuit_id = seed_circuit(live_app)
-    open_step(page, circuit_id)
-    context.set_offline(True)
-    try:
-        enter(page, "r-ln-b", "0.28")
-        expect(card(page, "r-ln-b").locator(".queued")).to_be_visible()
-    finally:
-        set_safety(live_app, circuit_id, False)  # the safety checks were withdrawn meanwhile
-        context.set_offline(False)
+    # the safety checks were withdrawn meanwhile
+    _, circuit_id = queued_offline(page, live_app, context, "r-ln-b", "0.28",
+                                   lambda _job, circuit: set_safety(live_app, circuit, False))
     expect(page.locator("#not-accepted")).to_contain_text("Confirm safe isolation first")
     assert outlet_reading(live_app, circuit_id, "b") is None
     set_safety(live_app, circuit_id, True)
