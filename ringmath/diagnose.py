@@ -93,12 +93,6 @@ def _fit_finding(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
                            explain.RING_FAULT_P, some_fault)
 
 
-def _median(x: np.ndarray) -> float | None:
-    """The median of the finite readings of ``x`` (ohms), None when there are none."""
-    x = x[np.isfinite(x)]
-    return float(np.median(x)) if x.size else None
-
-
 def _fit_words(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
                place: np.ndarray, names: dict) -> Finding:
     """``_fit_finding`` before its severity is graded by confidence."""
@@ -113,8 +107,8 @@ def _fit_words(prep: Prepared, fit: Fit, confidence: float, post: np.ndarray,
         return Finding("interconnection", "fault", msg, nxt, tuple(inside if located else ()),
                        confidence=confidence, section=(a, b), basis="ring")
     if fit.code in SETUP_FITS:
-        msg, nxt = setup_messages.cross_join_open(fit.step, *fit.ring_ohm, _median(
-            prep.ln_ohm if fit.step == "ln" else prep.le_ohm))
+        msg, nxt = setup_messages.cross_join_open(fit.step, *fit.ring_ohm,
+                                                  prep.step_median_ohm(fit.step))
         return Finding(fit.code, "warning", msg, nxt, step=fit.step, confidence=confidence,
                        basis="setup")
     if fit.code == "wrong_cross_connection":

@@ -71,14 +71,13 @@ def doubted(f: Finding, posterior: float, threshold: float, some_fault: bool = F
 def ratios_text(prep: Prepared) -> str:
     """The measured relations between the steps, as read: median step 2 and step 3 against a
     quarter of r1 + rn and of r1 + r2, and r2/r1 against the cable's ratio."""
-    r1, rn, r2 = prep.e2e_ohm
+    r1, _, r2 = prep.e2e_ohm
     parts = []
-    for name, x, ref in (("step 2", prep.ln_ohm, (r1 + rn) / 4), ("step 3", prep.le_ohm,
-                                                                   (r1 + r2) / 4)):
-        x = x[np.isfinite(x)]
-        if x.size and np.isfinite(ref) and ref > 0:
-            parts.append(f"{name} readings median {np.median(x):.2f} Ω against "
-                         f"{ref:.2f} Ω expected, ×{np.median(x) / ref:.2f}")
+    for name, step in (("step 2", "ln"), ("step 3", "le")):
+        median, ref = prep.step_median_ohm(step), prep.ring_top_ohm(step)
+        if median is not None and np.isfinite(ref) and ref > 0:
+            parts.append(f"{name} readings median {median:.2f} Ω against "
+                         f"{ref:.2f} Ω expected, ×{median / ref:.2f}")
     if np.isfinite(r1) and np.isfinite(r2) and r1 > 0:
         parts.append(f"r2/r1 = {r2 / r1:.2f}")
     return "; ".join(parts) if parts else "no step 2 or 3 readings"

@@ -301,10 +301,8 @@ HALF_STEP_MEDIAN = 1.2
 
 def _reads_above_a_ring(prep: Prepared, step: str) -> bool:
     """The step's median reading reaches HALF_STEP_MEDIAN x (a + b)/4 (ohms)."""
-    x = prep.ln_ohm if step == "ln" else prep.le_ohm
-    x = x[np.isfinite(x)]
-    a, b = prep.e2e_ohm[0], prep.e2e_ohm[1 if step == "ln" else 2]
-    return bool(x.size) and float(np.median(x)) >= HALF_STEP_MEDIAN * float(a + b) / 4
+    median = prep.step_median_ohm(step)
+    return median is not None and median >= HALF_STEP_MEDIAN * prep.ring_top_ohm(step)
 
 
 def fit_all(prep: Prepared) -> list[Fit]:

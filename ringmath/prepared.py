@@ -58,6 +58,18 @@ class Prepared:
         arrays = (self.e2e_ohm, self.ln_ohm, self.le_ohm, self.child_ln_ohm, self.child_le_ohm)
         return int(sum(np.count_nonzero(~np.isnan(a)) for a in arrays))
 
+    def step_median_ohm(self, step: str) -> float | None:
+        """Median of the finite ring-outlet readings of ``step`` ("ln" or "le"), ohms; None
+        when there are none."""
+        x = self.ln_ohm if step == "ln" else self.le_ohm
+        x = x[np.isfinite(x)]
+        return float(np.median(x)) if x.size else None
+
+    def ring_top_ohm(self, step: str) -> float:
+        """The most a sound ring point reads in ``step``: (a + b)/4 of the step's two
+        conductors end to end (series-parallel reduction, mid-ring; common practice), ohms."""
+        return float(self.e2e_ohm[0] + self.e2e_ohm[1 if step == "ln" else 2]) / 4
+
 
 def _val(x: float | None) -> float:
     return np.nan if x is None else float(x)
