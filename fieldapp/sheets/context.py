@@ -52,6 +52,15 @@ from fieldapp.sheets.words import (  # noqa: F401  (old import paths)
 )
 
 
+def _job_assessment(diagnoses: list, verdict: str | None) -> str:
+    """The job's verdict in words (its worst circuit's); a satisfactory job where a circuit
+    has a check standing says so, as that circuit does (``labels.assessment_words``)."""
+    if verdict == "satisfactory":
+        checked = next((d for d in diagnoses if labels.with_checks(d)), None)
+        return labels.assessment_words(checked or {"verdict": verdict})
+    return VERDICT_WORDS.get(verdict or "", labels.NOT_ASSESSED)
+
+
 def _circuit_context(index: int, rec: dict, diagnosis: dict | None, problem: str | None,
                      drawing: str = "screen") -> dict:
     circuit = rec.get("circuit") or {}
@@ -184,7 +193,7 @@ def sheet_context(document: dict, diagnoses: list, people: dict | None = None, *
         ],
         "status": STATUS_WORDS.get(people.get("status") or "", people.get("status") or ""),
         "review_comment": people.get("review_comment") or "",
-        "verdict": VERDICT_WORDS.get(verdict or "", labels.NOT_ASSESSED),
+        "verdict": _job_assessment(diagnoses, verdict),
         "circuits": [_circuit_context(i, rec, d, p, drawing)
                      for i, (rec, d, p) in enumerate(zip(records, diagnoses, problems,
                                                          strict=True))],

@@ -210,6 +210,12 @@ def test_the_assessment_in_words_is_one_rule_for_every_screen_and_the_sheet():
     ctx = _circuit_context(0, rec, checked, None)
     assert (ctx["verdict"], ctx["verdict_key"], ctx["checks"]) == (
         "Satisfactory, with checks to make", "satisfactory", True)
+    # and the job's overall assessment on the sheet says the same where every circuit passes
+    from fieldapp.sheets.context import sheet_context
+    doc = {"job": {"reference": "J1"}, "circuits": [rec, rec]}
+    assert sheet_context(doc, [plain, checked], {})["verdict"] == \
+        "Satisfactory, with checks to make"
+    assert sheet_context(doc, [plain, plain], {})["verdict"] == "Satisfactory"
     # the schedule row points at the finding in the same words (it printed "WARNING")
     named = {**checked, "findings": [{**warning, "outlets": ["a"]}]}
     row = _circuit_context(0, rec, named, None)["outlets"][0]
